@@ -1,0 +1,201 @@
+// Shared formatting for the reports: thousands separators, dates, terminal-safe text, tables.
+#include "report/format.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdint>
+
+#include <fmt/core.h>
+
+namespace poolbid::detail {
+namespace {
+
+constexpr std::string_view kReplacement = "\xEF\xBF\xBD";  // U+FFFD in UTF-8
+
+// Length of the valid UTF-8 sequence starting at text[i], or 0 if the bytes there are not one
+// (overlong forms, UTF-16 surrogates and code points above U+10FFFF are not valid).
+std::size_t utf8_sequence_length(std::string_view text, std::size_t i) {
+  const auto byte = [&](std::size_t k) { return static_cast<unsigned char>(text[k]); };
+  const unsigned char lead = byte(i);
+  if (lead < 0x80) return 1;
+  std::size_t length = 0;
+  unsigned char low = 0x80, high = 0xBF;  // allowed range of the second byte
+  if (lead >= 0xC2 && lead <= 0xDF) {
+    length = 2;
+  } else if (lead >= 0xE0 && lead <= 0xEF) {
+    length = 3;
+    if (lead == 0xE0) low = 0xA0;
+    if (lead == 0xED) high = 0x9F;
+  } else if (lead >= 0xF0 && lead <= 0xF4) {
+    length = 4;
+    if (lead == 0xF0) low = 0x90;
+    if (lead == 0xF4) high = 0x8F;
+  } else {
+    return 0;
+  }
+  if (i + length > text.size()) return 0;
+  if (byte(i + 1) < low || byte(i + 1) > high) return 0;
+  for (std::size_t k = 2; k < length; ++k)
+    if (byte(i + k) < 0x80 || byte(i + k) > 0xBF) return 0;
+  return length;
+}
+
+// Thousands separators in the integer part of a formatted non-negative number: "1234.50".
+std::string group_thousands(const std::string& digits) {
+  const std::size_t point = std::min(digits.find('.'), digits.size());
+  std::string out;
+  out.reserve(digits.size() + point / 3);
+  for (std::size_t i = 0; i < point; ++i) {
+    if (i > 0 && (point - i) % 3 == 0) out.push_back(',');
+    out.push_back(digits[i]);
+  }
+  out.append(digits, point, std::string::npos);
+  return out;
+}
+
+// True when a formatted magnitude is all zeros ("0.00"), so "-0.00" is printed as "0.00".
+bool all_zero(const std::string& digits) {
+  return digits.find_first_not_of("0.") == std::string::npos;
+}
+
+}  // namespace
+
+std::string with_thousands(double x, int decimals) {
+  if (!std::isfinite(x)) return "-";
+  const std::string digits = fmt::format("{:.{}f}", std::fabs(x), decimals);
+  const bool negative = x < 0 && !all_zero(digits);
+  return (negative ? "-" : "") + group_thousands(digits);
+}
+
+std::string dollars(double x) {
+  if (!std::isfinite(x)) return "-";
+  const std::string digits = fmt::format("{:.2f}", std::fabs(x));
+  const bool negative = x < 0 && !all_zero(digits);
+  return (negative ? "-$" : "$") + group_thousands(digits);
+}
+
+std::string fixed_or_dash(double x, int decimals) {
+  if (!std::isfinite(x)) return "-";
+  const std::string digits = fmt::format("{:.{}f}", std::fabs(x), decimals);
+  return (x < 0 && !all_zero(digits) ? "-" : "") + digits;
+}
+
+std::string iso_date(const Date& date) {
+  return fmt::format("{:04d}-{:02d}-{:02d}", static_cast<int>(date.year()),
+                     static_cast<unsigned>(date.month()), static_cast<unsigned>(date.day()));
+}
+
+std::string count_of(std::size_t n, std::string_view singular, std::string_view plural) {
+  return fmt::format("{} {}", with_thousands(static_cast<double>(n), 0),
+                     n == 1 ? singular : plural);
+}
+
+std::string display_text(std::string_view text, std::size_t max_width,
+                         std::string_view if_empty) {
+  if (text.empty()) return std::string(if_empty);
+  const bool plain = std::all_of(text.begin(), text.end(), [](char ch) {
+    return ch >= 0x20 && ch < 0x7F;  // printable ASCII: one byte, one column
+  });
+  if (plain && text.size() <= max_width) return std::string(text);
+  // Each piece is one displayed unit: a code point, U+FFFD, or an escape such as "\n".
+  std::vector<std::string> pieces;
+  for (std::size_t i = 0; i < text.size();) {
+    const std::size_t length = utf8_sequence_length(text, i);
+    const auto lead = static_cast<unsigned char>(text[i]);
+    if (length == 0) {
+      pieces.emplace_back(kReplacement);
+      i += 1;
+      continue;
+    }
+    if (length == 1 && (lead < 0x20 || lead == 0x7F)) {
+      pieces.emplace_back(lead == '\n'   ? "\\n"
+                          : lead == '\r' ? "\\r"
+                          : lead == '\t' ? "\\t"
+                                         : fmt::format("\\x{:02X}", lead));
+    } else if (length == 2 && lead == 0xC2 && static_cast<unsigned char>(text[i + 1]) < 0xA0) {
+      // C1 control characters (U+0080..U+009F): some terminals act on them.
+      pieces.emplace_back(fmt::format("\\u{:04X}", static_cast<unsigned char>(text[i + 1])));
+    } else {
+      pieces.emplace_back(text.substr(i, length));
+    }
+    i += length;
+  }
+  std::size_t width = 0;
+  for (const std::string& p : pieces) width += display_width(p);
+  std::string out;
+  if (width <= max_width) {
+    for (const std::string& p : pieces) out += p;
+    return out;
+  }
+  const std::size_t keep = max_width > 3 ? max_width - 3 : 0;
+  std::size_t used = 0;
+  for (const std::string& p : pieces) {
+    const std::size_t w = display_width(p);
+    if (used + w > keep) break;
+    out += p;
+    used += w;
+  }
+  return out + "...";
+}
+
+std::size_t display_width(std::string_view text) {
+  std::size_t width = 0;
+  for (char ch : text)
+    if ((static_cast<unsigned char>(ch) & 0xC0) != 0x80) ++width;  // not a continuation byte
+  return width;
+}
+
+std::string render(const TextTable& table, std::string_view indent) {
+  const std::size_t columns = table.align.size();
+  std::vector<std::size_t> widths(columns, 0);
+  auto measure = [&](const std::vector<std::string>& cells) {
+    for (std::size_t c = 0; c < columns && c < cells.size(); ++c)
+      widths[c] = std::max(widths[c], display_width(cells[c]));
+  };
+  if (!table.headers.empty()) measure(table.headers);
+  for (const auto& row : table.rows) measure(row);
+
+  std::string out;
+  auto write_line = [&](const std::vector<std::string>& cells) {
+    std::string line(indent);
+    for (std::size_t c = 0; c < columns; ++c) {
+      const std::string empty;
+      const std::string& cell = c < cells.size() ? cells[c] : empty;
+      const std::size_t pad = widths[c] - display_width(cell);
+      if (c > 0) line += "  ";
+      if (table.align[c] == Align::right) line.append(pad, ' ');
+      line += cell;
+      if (table.align[c] == Align::left && c + 1 < columns) line.append(pad, ' ');
+    }
+    while (!line.empty() && line.back() == ' ') line.pop_back();
+    out += line;
+    out += '\n';
+  };
+  if (!table.headers.empty()) write_line(table.headers);
+  for (const auto& row : table.rows) write_line(row);
+  return out;
+}
+
+Json number_or_null(double x) {
+  if (!std::isfinite(x)) return nullptr;
+  return x;
+}
+
+Json problem_json(const RowProblem& problem) {
+  return Json{
+      {"row", problem.row},
+      {"loan_id", problem.loan_id},
+      {"field", problem.field ? Json(std::string(field_name(*problem.field)))
+                              : Json(nullptr)},
+      {"column", problem.column},
+      {"value", problem.value},
+      {"reason", problem.reason},
+      {"severity", problem.reject ? "reject" : "warning"},
+  };
+}
+
+std::string dump_json(const Json& document) {
+  return document.dump(2, ' ', false, Json::error_handler_t::replace) + "\n";
+}
+
+}  // namespace poolbid::detail
