@@ -1,0 +1,386 @@
+// The pass over a tape's text: each record's cells into the staging arrays, with the rejects
+// found on the way (unparsable or missing cells, unknown spellings, duplicate ids, ragged rows).
+// Nothing per field is allocated; loan ids are checked for duplicates in a table sized up front.
+#include <fmt/core.h>
+
+#include <algorithm>
+#include <functional>
+
+#include "tape/fields.h"
+#include "tape/reader.h"
+
+namespace poolbid::detail {
+namespace {
+
+constexpr std::size_t kRaggedValueBytes = 60;   // of a ragged row, shown as its value
+constexpr std::size_t kCategoryCacheSize = 64;  // distinct spellings remembered per column
+
+// Loan ids seen so far: open addressing over staging indexes, each slot (hash << 32 | index + 1),
+// 0 when empty; keys are compared with the staged ids themselves, so nothing else is stored.
+struct IdTable {
+  std::vector<std::uint64_t> slots;
+  std::size_t used = 0;
+};
+
+std::uint32_t id_hash(std::string_view id) {
+  return static_cast<std::uint32_t>(std::hash<std::string_view>{}(id));
+}
+
+void place(std::vector<std::uint64_t>& slots, std::uint64_t entry) {
+  const std::size_t mask = slots.size() - 1;
+  for (std::size_t at = (entry >> 32) & mask;; at = (at + 1) & mask) {
+    if (slots[at] == 0) {
+      slots[at] = entry;
+      return;
+    }
+  }
+}
+
+void size_id_table(IdTable& table, std::size_t rows) {
+  std::size_t size = 16;
+  while (size < 2 * rows) size *= 2;
+  if (size <= table.slots.size()) return;
+  std::vector<std::uint64_t> old(size, 0);
+  old.swap(table.slots);
+  for (std::uint64_t entry : old)
+    if (entry != 0) place(table.slots, entry);
+}
+
+// The slot an id hashes to, asked for early so the lookup at the end of its row finds it cached.
+const std::uint64_t* id_slot(const IdTable& table, std::uint32_t hash) {
+  return table.slots.data() + (hash & (table.slots.size() - 1));
+}
+
+// The staging index of an earlier row with the id staged at `index` (whose hash is `hash`);
+// otherwise records `index` under it.
+std::optional<std::size_t> find_or_add_id(IdTable& table, const std::vector<std::string>& ids,
+                                          std::size_t index, std::uint32_t hash) {
+  if (2 * (table.used + 1) > table.slots.size()) size_id_table(table, table.used + 1);
+  const std::string_view id = ids[index];
+  const std::size_t mask = table.slots.size() - 1;
+  for (std::size_t at = hash & mask;; at = (at + 1) & mask) {
+    const std::uint64_t entry = table.slots[at];
+    if (entry == 0) {
+      table.slots[at] = (std::uint64_t{hash} << 32) | (index + 1);
+      ++table.used;
+      return std::nullopt;
+    }
+    const std::size_t other = static_cast<std::size_t>(entry & 0xFFFFFFFFu) - 1;
+    if ((entry >> 32) == hash && ids[other] == id) return other;
+  }
+}
+
+// A category column's cell texts seen so far and what they meant: columns have few spellings.
+struct CategoryCache {
+  std::vector<std::pair<std::string, int>> seen;  // trimmed cell -> value, or kUnknownSpelling
+};
+
+constexpr int kUnknownSpelling = -1;
+
+// The pass's state: what it produces, and what it keeps to produce it.
+struct Reading {
+  std::string_view text;
+  const Plan* plan;
+  const ColumnIndex* columns;
+  RowsRead out;
+  std::size_t staged = 0;  // rows in staging; its vectors may be longer
+  IdTable ids;
+  std::array<CategoryCache, kFieldCount> categories;
+};
+
+// What one row has read so far, beyond the staging arrays.
+struct RowContext {
+  const CsvRecord* record;
+  std::size_t index;      // staging index
+  std::string_view id{};  // trimmed loan id cell
+  std::uint32_t id_hash = 0;
+  std::uint64_t bad = 0;  // bit per Field: the cell was rejected
+  std::optional<int> remaining_from_maturity{};
+  std::optional<int> age_from_first_payment{};
+};
+
+void reject_cell(Reading& r, RowContext& row, Field f, std::string_view cell, std::string reason) {
+  r.out.problems.push_back({row.record->row, std::string(row.id), f,
+                            std::string(r.columns->name(f)), std::string(cell), std::move(reason),
+                            true});
+  r.out.staging.rejected[row.index] = 1;
+  row.bad |= bit(f);
+}
+
+// The enum value a category cell spells (the map's spellings first, then ours), or
+// kUnknownSpelling. An int, not an optional: this runs for every category cell.
+int category_value(Reading& r, Field f, std::string_view text) {
+  CategoryCache& cache = r.categories[static_cast<std::size_t>(f)];
+  for (const auto& [seen, value] : cache.seen)
+    if (seen == text) return value;
+  int value = kUnknownSpelling;
+  const std::vector<Spelling>& theirs = r.plan->spellings[static_cast<std::size_t>(f)];
+  if (!theirs.empty()) {
+    const std::string folded = fold_spelling(text);
+    for (const Spelling& s : theirs)
+      if (s.folded == folded) value = s.value;
+  }
+  if (value == kUnknownSpelling) {
+    if (const std::optional<std::uint8_t> ours = parse_category(f, text)) value = *ours;
+  }
+  if (cache.seen.size() < kCategoryCacheSize) cache.seen.emplace_back(std::string(text), value);
+  return value;
+}
+
+void store_category(LoanArrays& l, Field f, std::size_t i, std::uint8_t value) {
+  switch (f) {
+    case Field::amortization_type: l.amortization[i] = static_cast<Amortization>(value); break;
+    case Field::occupancy: l.occupancy[i] = static_cast<Occupancy>(value); break;
+    case Field::property_type: l.property_type[i] = static_cast<PropertyType>(value); break;
+    case Field::loan_purpose: l.purpose[i] = static_cast<Purpose>(value); break;
+    case Field::documentation: l.documentation[i] = static_cast<Documentation>(value); break;
+    default: l.delinquency[i] = static_cast<Delinquency>(value); break;
+  }
+}
+
+// Index of `name` in `names`, added at the end if new; nullopt past `limit` names.
+std::optional<std::size_t> name_index(std::vector<std::string>& names, std::string_view name,
+                                      std::size_t limit) {
+  for (std::size_t i = 0; i < names.size(); ++i)
+    if (names[i] == name) return i;
+  if (names.size() >= limit) return std::nullopt;
+  names.emplace_back(name);
+  return names.size() - 1;
+}
+
+// A money, rate, whole-number or score cell (most of a tape's cells: kept small to inline).
+void read_number_cell(Reading& r, RowContext& row, const Step& step, std::string_view cell) {
+  const Field f = step.field;
+  const std::string_view text = trim_spaces(cell);
+  if (text.empty()) {
+    if (step.required) reject_cell(r, row, f, cell, "required field missing");
+    return;
+  }
+  double value = 0;
+  bool percent = false;
+  if (!short_decimal(text, value)) {
+    // Thousands separators belong to dollar amounts; elsewhere a comma is likelier a decimal
+    // comma ("7,125" for a 7.125% note rate), so it is not read as 7125.
+    if (step.kind != CellKind::money && text.find(',') != std::string_view::npos)
+      return reject_cell(r, row, f, cell,
+                         "not a number (a comma is a thousands separator only in dollar amounts)");
+    const std::optional<Number> number = parse_number(text);
+    if (!number || (number->percent && step.kind != CellKind::rate))
+      return reject_cell(r, row, f, cell, "not a number");
+    value = number->value;
+    percent = number->percent;
+  }
+  LoanArrays& l = r.out.staging.loans;
+  const std::size_t i = row.index;
+  if (step.kind == CellKind::whole || step.kind == CellKind::score) {
+    if (!is_whole_int32(value)) return reject_cell(r, row, f, cell, "not a whole number");
+    if (step.kind == CellKind::whole)
+      (l.*step.ints)[i] = static_cast<std::int32_t>(value);
+    else
+      (l.*step.doubles)[i] = value;
+  } else {
+    (l.*step.doubles)[i] = value;
+  }
+  if (step.kind == CellKind::rate) {
+    const std::size_t k = static_cast<std::size_t>(f);
+    if (percent) {
+      r.out.staging.percent[i] |= bit(f);
+    } else if (!r.out.any_plain[k] || value > r.out.largest_plain[k]) {
+      r.out.largest_plain[k] = value;
+      r.out.any_plain[k] = true;
+    }
+  }
+  r.out.staging.given[i] |= bit(f);
+}
+
+// Any other cell: ids, names, dates, categories, states.
+void read_other_cell(Reading& r, RowContext& row, const Step& step, std::string_view cell) {
+  const Field f = step.field;
+  const std::string_view text = trim_spaces(cell);
+  if (text.empty()) {
+    if (step.required) reject_cell(r, row, f, cell, "required field missing");
+    return;
+  }
+  LoanArrays& l = r.out.staging.loans;
+  const std::size_t i = row.index;
+  std::uint64_t& given = r.out.staging.given[i];
+  switch (step.kind) {
+    case CellKind::loan_id:
+      l.loan_id[i].assign(text);
+      given |= bit(f);
+      return;
+    case CellKind::seller: {
+      const auto index = name_index(l.seller_names, text, UINT16_MAX + std::size_t{1});
+      if (!index) return reject_cell(r, row, f, cell, "more than 65,536 sellers on one tape");
+      l.seller[i] = static_cast<std::uint16_t>(*index);
+      given |= bit(f);
+      return;
+    }
+    case CellKind::arm_index: {
+      const auto index = name_index(l.arm_index_names, text, UINT8_MAX + std::size_t{1});
+      if (!index) return reject_cell(r, row, f, cell, "more than 255 ARM index names on one tape");
+      l.arm_index[i] = static_cast<std::uint8_t>(*index);
+      given |= bit(f);
+      return;
+    }
+    case CellKind::money:
+    case CellKind::rate:
+    case CellKind::whole:
+    case CellKind::score: return read_number_cell(r, row, step, cell);
+    case CellKind::date:
+    case CellKind::first_payment:
+    case CellKind::maturity: {
+      const std::optional<Date> date = parse_cell_date(text);
+      if (!date) return reject_cell(r, row, f, cell, "not a date (YYYY-MM-DD or M/D/YYYY)");
+      if (step.kind == CellKind::date) l.property_value_date[i] = days_since_epoch(*date);
+      if (step.kind == CellKind::first_payment)
+        row.age_from_first_payment = whole_months_between(*date, *r.plan->cutoff);
+      if (step.kind == CellKind::maturity)
+        row.remaining_from_maturity = months_to_maturity(*r.plan->cutoff, *date);
+      given |= bit(f);
+      return;
+    }
+    case CellKind::category: {
+      const int value = category_value(r, f, text);
+      if (value == kUnknownSpelling)
+        return reject_cell(r, row, f, cell,
+                           fmt::format("unknown {} '{}': expected {} (a column map's \"values\" "
+                                       "can add this seller's spellings)",
+                                       field_name(f), text, category_spellings(f)));
+      store_category(l, f, i, static_cast<std::uint8_t>(value));
+      given |= bit(f);
+      return;
+    }
+    case CellKind::state: {
+      const std::uint8_t index = state_of(*r.plan, text);
+      if (index == 0)
+        return reject_cell(r, row, f, cell, "unknown state code (two-letter USPS code expected)");
+      l.state[i] = index;
+      given |= bit(f);
+      return;
+    }
+  }
+}
+
+// Remaining term from the maturity date when its own cell is empty; age from the first payment
+// date, or else from the terms, when its cell is empty.
+void derive_terms(Reading& r, RowContext& row) {
+  LoanArrays& l = r.out.staging.loans;
+  const std::size_t i = row.index;
+  std::uint64_t& given = r.out.staging.given[i];
+  if (!(given & bit(Field::remaining_term))) {
+    if (row.remaining_from_maturity) {
+      l.remaining_term[i] = *row.remaining_from_maturity;
+      given |= bit(Field::remaining_term);
+      r.out.staging.source[i] |= kRemainingFromMaturity;
+    } else if (!(row.bad & (bit(Field::remaining_term) | bit(Field::maturity_date)))) {
+      const Field f =
+          r.columns->has(Field::remaining_term) ? Field::remaining_term : Field::maturity_date;
+      reject_cell(r, row, f, row.record->fields[r.columns->at(f)], "required field missing");
+    }
+  }
+  if (!(given & bit(Field::loan_age))) {
+    if (row.age_from_first_payment) {
+      l.age[i] = *row.age_from_first_payment;
+      given |= bit(Field::loan_age);
+      r.out.staging.source[i] |= kAgeFromFirstPayment;
+    } else if (!(row.bad & (bit(Field::loan_age) | bit(Field::first_payment_date))) &&
+               (given & bit(Field::original_term)) && (given & bit(Field::remaining_term))) {
+      l.age[i] = l.original_term[i] - l.remaining_term[i];
+      given |= bit(Field::loan_age);
+      r.out.staging.source[i] |= kAgeFromTerms;
+      if (r.columns->has(Field::loan_age) || has_step(*r.plan, Field::first_payment_date))
+        ++r.out.ages_from_terms;
+    }
+  }
+}
+
+void check_duplicate_id(Reading& r, RowContext& row) {
+  if (!(r.out.staging.given[row.index] & bit(Field::loan_id))) return;
+  const std::optional<std::size_t> first =
+      find_or_add_id(r.ids, r.out.staging.loans.loan_id, row.index, row.id_hash);
+  if (first)
+    reject_cell(r, row, Field::loan_id, row.record->fields[r.columns->at(Field::loan_id)],
+                fmt::format("duplicate loan id, first at row {}", r.out.staging.loans.row[*first]));
+}
+
+// The first `bytes` of `text`, not cutting a UTF-8 character in two.
+std::string_view utf8_prefix(std::string_view text, std::size_t bytes) {
+  if (text.size() <= bytes) return text;
+  while (bytes > 0 && (static_cast<unsigned char>(text[bytes]) & 0xC0) == 0x80) --bytes;
+  return text.substr(0, bytes);
+}
+
+void reject_ragged_row(Reading& r, const CsvRecord& record) {
+  const std::size_t id_column = r.columns->at(Field::loan_id);
+  const std::string_view id =
+      id_column < record.fields.size() ? trim_spaces(record.fields[id_column]) : "";
+  r.out.problems.push_back({record.row, std::string(id), std::nullopt, "",
+                            std::string(utf8_prefix(record.raw, kRaggedValueBytes)),
+                            fmt::format("row has {} fields, header has {}", record.fields.size(),
+                                        r.columns->header.size()),
+                            true});
+  ++r.out.ragged_rows;
+}
+
+// Staging vectors are grown (filled with missing values) ahead of use and cut to size after the
+// pass over the text; rows are written in place.
+void resize_staging(Staging& staging, std::size_t rows) {
+  for_each_loan_vector(staging.loans,
+                       [rows](auto& vector, const auto& missing) { vector.resize(rows, missing); });
+  staging.offset.resize(rows, 0);
+  staging.given.resize(rows, 0);
+  staging.percent.resize(rows, 0);
+  staging.source.resize(rows, 0);
+  staging.rejected.resize(rows, 0);
+}
+
+void read_row(Reading& r, const CsvRecord& record) {
+  ++r.out.rows_read;
+  if (record.fields.size() != r.columns->header.size()) return reject_ragged_row(r, record);
+  if (r.staged == r.out.staging.offset.size())
+    resize_staging(r.out.staging, std::max<std::size_t>(1024, 2 * r.staged));
+  RowContext row{&record, r.staged++};
+  r.out.staging.offset[row.index] = record.offset;
+  r.out.staging.loans.row[row.index] = static_cast<std::uint32_t>(record.row);
+  row.id = trim_spaces(record.fields[r.columns->at(Field::loan_id)]);
+  row.id_hash = id_hash(row.id);
+  // Written here, not in a helper: GCC drops a call to a function that only prefetches.
+  if (!r.ids.slots.empty()) __builtin_prefetch(id_slot(r.ids, row.id_hash));
+  for (const Step& step : r.plan->steps) {
+    const std::string_view cell = record.fields[step.column];
+    if (cell.empty() && !step.required) continue;  // the many empty optional cells: done
+    if (step.number)
+      read_number_cell(r, row, step, cell);
+    else
+      read_other_cell(r, row, step, cell);
+  }
+  derive_terms(r, row);
+  check_duplicate_id(r, row);
+}
+
+// A row of n fields takes at least n bytes with its line end; lines bound it too.
+std::size_t estimated_rows(std::string_view text, std::size_t header_fields) {
+  const std::size_t lines = count_byte(text, '\n') + 1;
+  return std::min(lines, text.size() / std::max<std::size_t>(header_fields, 1) + 1);
+}
+
+}  // namespace
+
+RowsRead read_rows(CsvScanner& scanner, const Plan& plan, const ColumnIndex& columns) {
+  Reading r;
+  r.text = scanner.text;
+  r.plan = &plan;
+  r.columns = &columns;
+  r.out.staging.loans.seller_names = {plan.default_seller};
+  r.out.staging.loans.arm_index_names = {""};
+  const std::size_t expected_rows = estimated_rows(scanner.text, columns.header.size());
+  resize_staging(r.out.staging, expected_rows);
+  size_id_table(r.ids, expected_rows);
+  CsvRecord record;
+  while (next_record(scanner, record)) read_row(r, record);
+  resize_staging(r.out.staging, r.staged);
+  return std::move(r.out);
+}
+
+}  // namespace poolbid::detail
