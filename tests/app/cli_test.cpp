@@ -1,0 +1,453 @@
+// The `poolbid` command run as a user runs it: exit codes, what goes to stdout and stderr, JSON
+// that parses, files written whole or not at all, and the README's test command matching CI's.
+#include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <iterator>
+#include <nlohmann/json.hpp>
+#include <set>
+#include <sstream>
+#include <string>
+#include <vector>
+
+namespace {
+
+namespace fs = std::filesystem;
+using nlohmann::json;
+
+const fs::path kSource = POOLBID_SOURCE_DIR;
+const std::string kBinary = POOLBID_BINARY;
+
+// Exit codes, as the README's table gives them.
+constexpr int kOk = 0, kUsage = 2, kRowsRejected = 3, kUnusableTape = 4, kUnusableInput = 5,
+              kCannotWrite = 6;
+
+const std::string kStrict = "demo-pools/brindlecote-strict.csv";
+const std::string kLoose = "demo-pools/sallowmere-loose.csv";
+const std::string kLooseMap = "demo-pools/sallowmere.map.json";
+const std::string kBadTape = "demo-pools/bad-tape.csv";
+const std::string kCorpus = "tests/tape/malformed/";
+
+std::string read_file(const fs::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  return std::string((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+}
+
+std::string shell_quoted(const std::string& text) {
+  std::string out = "'";
+  for (char ch : text) out += ch == '\'' ? std::string("'\\''") : std::string(1, ch);
+  return out + "'";
+}
+
+std::size_t line_count(const std::string& text) {
+  return static_cast<std::size_t>(std::count(text.begin(), text.end(), '\n'));
+}
+
+std::size_t count_at(const json& doc, const char* key) { return doc.at(key).get<std::size_t>(); }
+
+// rows read = rows accepted + rows rejected, always (README).
+bool rows_add_up(const json& doc) {
+  return count_at(doc, "rows_read") ==
+         count_at(doc, "rows_accepted") + count_at(doc, "rows_rejected");
+}
+
+struct Outcome {
+  int exit_code;
+  std::string out, err;
+};
+
+std::ostream& operator<<(std::ostream& os, const Outcome& r) {
+  return os << "exit " << r.exit_code << "\n--- stderr:\n"
+            << r.err << "--- stdout (first 2000 bytes):\n"
+            << r.out.substr(0, 2000);
+}
+
+// A scratch folder of its own per test (tests run in parallel), removed afterwards.
+class Cli : public testing::Test {
+ protected:
+  void SetUp() override {
+    const auto* info = testing::UnitTest::GetInstance()->current_test_info();
+    scratch_ = fs::temp_directory_path() /
+               ("poolbid_cli_test_" + std::to_string(::getpid()) + "_" + info->name());
+    fs::remove_all(scratch_);
+    fs::create_directories(scratch_);
+  }
+  void TearDown() override { fs::remove_all(scratch_); }
+
+  // Runs poolbid with `args` from the repository root (relative paths are the README's).
+  Outcome poolbid(const std::vector<std::string>& args) const {
+    const fs::path out = scratch_ / "stdout", err = scratch_ / "stderr";
+    std::string command = "cd " + shell_quoted(kSource.string()) + " && " + shell_quoted(kBinary);
+    for (const std::string& a : args) command += " " + shell_quoted(a);
+    command += " >" + shell_quoted(out.string()) + " 2>" + shell_quoted(err.string());
+    command += " </dev/null";
+    const int status = std::system(command.c_str());
+    Outcome r{-1, read_file(out), read_file(err)};
+    if (status != -1 && WIFEXITED(status)) r.exit_code = WEXITSTATUS(status);
+    return r;
+  }
+
+  fs::path scratch_;
+};
+
+// ---- Reading tapes that are fine ----------------------------------------------------------------
+
+struct DemoTape {
+  std::string name;
+  std::vector<std::string> tape_args;
+};
+
+std::vector<DemoTape> demo_tapes() {
+  return {{"strict", {kStrict}}, {"loose", {kLoose, "--map", kLooseMap}}};
+}
+
+TEST_F(Cli, CheckAndStratsOnBothDemoTapesExitZero) {
+  for (const DemoTape& tape : demo_tapes()) {
+    for (const std::string command : {"check", "strats"}) {
+      std::vector<std::string> args = {command};
+      args.insert(args.end(), tape.tape_args.begin(), tape.tape_args.end());
+      const Outcome text = poolbid(args);
+      EXPECT_EQ(text.exit_code, kOk) << command << " " << tape.name << "\n" << text;
+      EXPECT_EQ(text.err, "") << command << " " << tape.name;
+      EXPECT_NE(text.out.find("not investment advice"), std::string::npos) << text;
+      if (command == std::string("check")) {
+        EXPECT_NE(text.out.find("problems: none"), std::string::npos) << text;
+      }
+    }
+  }
+}
+
+TEST_F(Cli, CheckJsonOnBothDemoTapes) {
+  for (const DemoTape& tape : demo_tapes()) {
+    std::vector<std::string> args = {"check"};
+    args.insert(args.end(), tape.tape_args.begin(), tape.tape_args.end());
+    args.push_back("--json");
+    const Outcome r = poolbid(args);
+    ASSERT_EQ(r.exit_code, kOk) << tape.name << "\n" << r;
+    EXPECT_EQ(r.err, "");
+    const json doc = json::parse(r.out);
+    EXPECT_TRUE(rows_add_up(doc));
+    EXPECT_EQ(count_at(doc, "rows_read"), 2000u);  // demo-pools/README.md: 2,000 loans
+    EXPECT_EQ(count_at(doc, "rows_rejected"), 0u);
+    EXPECT_TRUE(doc.at("problems").empty());
+  }
+}
+
+TEST_F(Cli, StratsJsonOnBothDemoTapes) {
+  for (const DemoTape& tape : demo_tapes()) {
+    std::vector<std::string> args = {"strats"};
+    args.insert(args.end(), tape.tape_args.begin(), tape.tape_args.end());
+    args.push_back("--json");
+    const Outcome r = poolbid(args);
+    ASSERT_EQ(r.exit_code, kOk) << tape.name << "\n" << r;
+    EXPECT_EQ(r.err, "");
+    const json doc = json::parse(r.out);
+    EXPECT_EQ(count_at(doc, "loans"), 2000u);  // demo-pools/README.md: 2,000 loans
+    // Strats are of the accepted loans; the document must still account for every row read.
+    ASSERT_TRUE(doc.contains("rows_read") && doc.contains("rows_accepted"))
+        << tape.name << ": strats JSON has no rows_read / rows_accepted, so a reader of it "
+                        "cannot see that no row went missing";
+    EXPECT_TRUE(rows_add_up(doc));
+    EXPECT_EQ(count_at(doc, "rows_accepted"), count_at(doc, "loans"));
+  }
+}
+
+// ---- A tape with rejected rows ------------------------------------------------------------------
+
+// The rows of demo-pools/bad-tape.csv made invalid on purpose (its README lists the 14 faults;
+// rows counted in the file, header = row 1).
+const std::set<std::size_t> kBadTapeRejectedRows = {3,  5,  7,  10, 12, 15, 17,
+                                                    20, 22, 24, 27, 29, 32, 34};
+
+TEST_F(Cli, BadTapeExitsThreeAndListsEveryRejectedRow) {
+  const Outcome j = poolbid({"check", kBadTape, "--json"});
+  ASSERT_EQ(j.exit_code, kRowsRejected) << j;
+  EXPECT_EQ(j.err, "");
+  const json doc = json::parse(j.out);
+  EXPECT_EQ(count_at(doc, "rows_read"), 40u);
+  EXPECT_EQ(count_at(doc, "rows_rejected"), kBadTapeRejectedRows.size());
+  EXPECT_TRUE(rows_add_up(doc));
+  std::set<std::size_t> rejected;
+  for (const json& p : doc.at("problems"))
+    if (p.at("severity") == "reject") rejected.insert(p.at("row").get<std::size_t>());
+  EXPECT_EQ(rejected, kBadTapeRejectedRows);
+
+  // The text report lists each rejected row too: a line starting with its number, marked REJECT.
+  const Outcome t = poolbid({"check", kBadTape});
+  ASSERT_EQ(t.exit_code, kRowsRejected) << t;
+  EXPECT_EQ(t.err, "");
+  std::set<std::size_t> listed;
+  std::istringstream lines(t.out);
+  for (std::string line; std::getline(lines, line);) {
+    if (line.find("REJECT") == std::string::npos) continue;
+    std::size_t row = 0;
+    if (std::istringstream(line) >> row) listed.insert(row);
+  }
+  EXPECT_EQ(listed, kBadTapeRejectedRows) << t.out;
+
+  // strats on it runs, says so with exit code 3, and lists the rejects in its JSON.
+  const Outcome s = poolbid({"strats", kBadTape, "--json"});
+  ASSERT_EQ(s.exit_code, kRowsRejected) << s;
+  const json strats = json::parse(s.out);
+  EXPECT_EQ(count_at(strats, "loans"), 40u - kBadTapeRejectedRows.size());
+  std::set<std::size_t> strats_rejected;
+  for (const json& p : strats.at("rejects")) strats_rejected.insert(p.at("row").get<std::size_t>());
+  EXPECT_EQ(strats_rejected, kBadTapeRejectedRows);
+}
+
+// ---- Files that cannot be read as tapes ---------------------------------------------------------
+
+// The corpus files that are not tapes at all (tests/tape/malformed/README.md).
+const std::vector<std::string> kUnusableCorpusTapes = {
+    "empty.csv",
+    "bom-only.csv",
+    "blank-lines-only.csv",
+    "header-only.csv",
+    "header-and-blank-lines.csv",
+    "semicolon-delimited.csv",
+    "tab-delimited.csv",
+    "pipe-delimited.csv",
+    "cr-line-endings.csv",
+    "binary-nul.csv",
+    "utf16.csv",
+    "unterminated-quote.csv",
+    "missing-loan-id-column.csv",
+    "missing-remaining-term-column.csv",
+    "missing-servicing-fee-column.csv",
+    "duplicate-column.csv",
+};
+
+// One line on stderr that names `file`, and nothing on stdout: nothing is written.
+void expect_one_error_line(const Outcome& r, const std::string& file, int code) {
+  EXPECT_EQ(r.exit_code, code) << file << "\n" << r;
+  EXPECT_EQ(r.out, "") << file;
+  EXPECT_EQ(line_count(r.err), 1u) << file << "\n" << r.err;
+  EXPECT_EQ(r.err.rfind("poolbid: ", 0), 0u) << r.err;
+  EXPECT_NE(r.err.find(file), std::string::npos) << "stderr does not name " << file << ": "
+                                                 << r.err;
+}
+
+TEST_F(Cli, UnusableCorpusTapesExitFour) {
+  for (const std::string& name : kUnusableCorpusTapes) {
+    const std::string file = kCorpus + name;
+    expect_one_error_line(poolbid({"check", file}), file, kUnusableTape);
+    expect_one_error_line(poolbid({"strats", file, "--json"}), file, kUnusableTape);
+  }
+}
+
+TEST_F(Cli, RunawayRowOfTwoMebibytesExitsFour) {
+  const fs::path tape = scratch_ / "runaway.csv";
+  {
+    std::ofstream out(tape, std::ios::binary);
+    out << read_file(kSource / kCorpus / "header-only.csv");
+    out << "L001,Harbor Bank,200000.00,250000.00,6.5,0.25,360,348,12,740,80,80,36,owner,"
+           "2025-11-15,CA\n";
+    out << "L002,Harbor Bank," << std::string(std::size_t{2} << 20, 'x') << "\n";
+  }
+  const Outcome r = poolbid({"check", tape.string()});
+  expect_one_error_line(r, tape.string(), kUnusableTape);
+  EXPECT_NE(r.err.find("row 3"), std::string::npos) << r.err;
+}
+
+TEST_F(Cli, MissingTapeAndDirectoryExitFour) {
+  expect_one_error_line(poolbid({"check", "demo-pools/no-such-tape.csv"}),
+                        "demo-pools/no-such-tape.csv", kUnusableTape);
+  expect_one_error_line(poolbid({"check", "demo-pools"}), "demo-pools", kUnusableTape);
+}
+
+// Every corpus tape, whatever its fault, ends in a documented exit code: a report on stdout and
+// nothing on stderr (0, 3), or one line on stderr and nothing on stdout (4, 5); never a crash.
+TEST_F(Cli, EveryCorpusTapeEndsInADocumentedExitCode) {
+  std::size_t tapes = 0;
+  for (const fs::directory_entry& entry : fs::directory_iterator(kSource / kCorpus)) {
+    const std::string name = entry.path().filename().string();
+    if (entry.path().extension() != ".csv") continue;
+    ++tapes;
+    const std::string file = kCorpus + name;
+    const Outcome r = poolbid({"check", file, "--json"});
+    if (r.exit_code == kOk || r.exit_code == kRowsRejected) {
+      EXPECT_EQ(r.err, "") << file;
+      const json doc = json::parse(r.out);
+      EXPECT_TRUE(rows_add_up(doc)) << file;
+      EXPECT_EQ(r.exit_code == kRowsRejected, count_at(doc, "rows_rejected") > 0) << file;
+    } else if (r.exit_code == kUnusableTape || r.exit_code == kUnusableInput) {
+      expect_one_error_line(r, file, r.exit_code);
+    } else {
+      ADD_FAILURE() << file << ": undocumented exit code\n" << r;
+    }
+  }
+  EXPECT_GE(tapes, 24u);
+}
+
+// ---- Other unusable inputs ----------------------------------------------------------------------
+
+TEST_F(Cli, BadColumnMapsExitFive) {
+  for (const std::string name :
+       {"bad-map-json.map.json", "bad-map-unknown-field.map.json", "bad-map-unknown-unit.map.json",
+        "bad-map-cutoff.map.json", "bad-map-fee-as-text.map.json"}) {
+    const std::string map = kCorpus + name;
+    expect_one_error_line(poolbid({"check", kLoose, "--map", map}), map, kUnusableInput);
+    expect_one_error_line(poolbid({"strats", kLoose, "--map", map, "--json"}), map,
+                          kUnusableInput);
+  }
+  expect_one_error_line(poolbid({"check", kLoose, "--map", "demo-pools/no-such.map.json"}),
+                        "demo-pools/no-such.map.json", kUnusableInput);
+}
+
+TEST_F(Cli, BadCutoffExitsFiveAndShowsTheValue) {
+  for (const std::string cutoff : {"2026-13-01", "12/2026", "yesterday"}) {
+    const Outcome r = poolbid({"check", kStrict, "--cutoff", cutoff});
+    EXPECT_EQ(r.exit_code, kUnusableInput) << cutoff << "\n" << r;
+    EXPECT_EQ(r.out, "");
+    EXPECT_EQ(line_count(r.err), 1u) << r.err;
+    EXPECT_NE(r.err.find("--cutoff"), std::string::npos) << r.err;
+    EXPECT_NE(r.err.find(cutoff), std::string::npos) << "the message hides the value: " << r.err;
+  }
+}
+
+TEST_F(Cli, ServicingFeeOutOfRangeExitsFiveAndNamesTheOption) {
+  const Outcome r = poolbid({"check", kStrict, "--servicing-fee", "30"});
+  EXPECT_EQ(r.exit_code, kUnusableInput) << r;
+  EXPECT_EQ(r.out, "");
+  EXPECT_EQ(line_count(r.err), 1u) << r.err;
+  // The fault is the option, not a column of the tape.
+  EXPECT_NE(r.err.find("--servicing-fee"), std::string::npos) << r.err;
+}
+
+TEST_F(Cli, DateColumnsWithoutACutoffExitFive) {
+  const std::string file = kCorpus + "maturity-without-cutoff.csv";
+  const Outcome r = poolbid({"check", file});
+  expect_one_error_line(r, file, kUnusableInput);
+  EXPECT_NE(r.err.find("--cutoff"), std::string::npos) << r.err;
+  // With the cut-off given, the same tape reads.
+  EXPECT_EQ(poolbid({"check", file, "--cutoff", "2026-12-01"}).exit_code, kOk);
+}
+
+// ---- The command line itself --------------------------------------------------------------------
+
+TEST_F(Cli, BadUsageExitsTwo) {
+  const std::vector<std::vector<std::string>> cases = {
+      {"check", kStrict, "--no-such-option"},
+      {"check"},
+      {"strats", "--json"},
+      {},
+      {"no-such-command"},
+      {"check", kStrict, "--servicing-fee", "abc"},
+      {"demo-tape", "--profile", "medium"},
+      {"demo-tape", "--loans", "0"},
+  };
+  for (const std::vector<std::string>& args : cases) {
+    const Outcome r = poolbid(args);
+    std::string shown;
+    for (const std::string& a : args) shown += " " + a;
+    EXPECT_EQ(r.exit_code, kUsage) << "poolbid" << shown << "\n" << r;
+    EXPECT_EQ(r.out, "") << "poolbid" << shown;
+    EXPECT_NE(r.err, "") << "poolbid" << shown;
+  }
+}
+
+TEST_F(Cli, VersionExitsZero) {
+  const Outcome r = poolbid({"--version"});
+  EXPECT_EQ(r.exit_code, kOk) << r;
+  EXPECT_EQ(r.out.rfind("poolbid ", 0), 0u) << r.out;
+}
+
+TEST_F(Cli, HelpExitsZero) {
+  const Outcome r = poolbid({"--help"});
+  EXPECT_EQ(r.exit_code, kOk) << r;
+  EXPECT_NE(r.out.find("check"), std::string::npos) << r.out;
+}
+
+// ---- Writing files ------------------------------------------------------------------------------
+
+const std::vector<std::string> kDemoArgs = {"demo-tape", "--loans", "25", "--profile", "loose",
+                                            "--seed", "11", "--bad-rows", "3"};
+
+std::vector<std::string> with(std::vector<std::string> args,
+                              std::initializer_list<std::string> more) {
+  args.insert(args.end(), more.begin(), more.end());
+  return args;
+}
+
+TEST_F(Cli, DemoTapeOutWritesWhatStdoutWouldShow) {
+  const Outcome to_stdout = poolbid(kDemoArgs);
+  ASSERT_EQ(to_stdout.exit_code, kOk) << to_stdout;
+  ASSERT_EQ(line_count(to_stdout.out), 26u);  // header + 25 loans
+  const fs::path file = scratch_ / "demo.csv";
+  const Outcome to_file = poolbid(with(kDemoArgs, {"--out", file.string()}));
+  ASSERT_EQ(to_file.exit_code, kOk) << to_file;
+  EXPECT_EQ(to_file.out, "");
+  EXPECT_EQ(to_file.err, "");
+  EXPECT_EQ(read_file(file), to_stdout.out);
+  EXPECT_FALSE(fs::exists(file.string() + ".partial"));
+  // A second run replaces the file whole.
+  ASSERT_EQ(poolbid(with(kDemoArgs, {"--out", file.string()})).exit_code, kOk);
+  EXPECT_EQ(read_file(file), to_stdout.out);
+}
+
+TEST_F(Cli, DemoTapeOutIntoAMissingFolderExitsSixAndLeavesNothing) {
+  const fs::path folder = scratch_ / "no-such-folder";
+  const fs::path file = folder / "demo.csv";
+  const Outcome r = poolbid(with(kDemoArgs, {"--out", file.string()}));
+  expect_one_error_line(r, file.string(), kCannotWrite);
+  EXPECT_FALSE(fs::exists(file));
+  EXPECT_FALSE(fs::exists(file.string() + ".partial"));
+  EXPECT_FALSE(fs::exists(folder));
+}
+
+TEST_F(Cli, DemoTapeOutOntoAFolderExitsSixAndLeavesNothing) {
+  const fs::path folder = scratch_ / "a-folder";
+  fs::create_directories(folder);
+  const Outcome r = poolbid(with(kDemoArgs, {"--out", folder.string()}));
+  expect_one_error_line(r, folder.string(), kCannotWrite);
+  EXPECT_TRUE(fs::is_directory(folder));
+  EXPECT_TRUE(fs::is_empty(folder));
+  EXPECT_FALSE(fs::exists(folder.string() + ".partial"));
+  // Nothing else appeared beside it either (the scratch folder holds only the captured output).
+  std::set<std::string> names;
+  for (const fs::directory_entry& e : fs::directory_iterator(scratch_))
+    names.insert(e.path().filename().string());
+  EXPECT_EQ(names, (std::set<std::string>{"a-folder", "stderr", "stdout"}));
+}
+
+// ---- The README and CI run one command ----------------------------------------------------------
+
+// The fenced ```sh blocks of a Markdown text, in order, each without its fences.
+std::vector<std::string> sh_blocks(const std::string& markdown) {
+  std::vector<std::string> blocks;
+  std::istringstream lines(markdown);
+  bool inside = false;
+  std::string block;
+  for (std::string line; std::getline(lines, line);) {
+    if (!inside && line == "```sh") {
+      inside = true;
+      block.clear();
+    } else if (inside && line == "```") {
+      inside = false;
+      if (!block.empty() && block.back() == '\n') block.pop_back();
+      blocks.push_back(block);
+    } else if (inside) {
+      block += line + "\n";
+    }
+  }
+  return blocks;
+}
+
+TEST(ReadmeAndCi, ReadmeTestCommandIsTheLastLineOfCiRun) {
+  const std::vector<std::string> blocks = sh_blocks(read_file(kSource / "README.md"));
+  ASSERT_GE(blocks.size(), 2u) << "README.md has fewer than two ```sh blocks";
+  const std::string ci = read_file(kSource / ".ci" / "run");
+  ASSERT_FALSE(ci.empty()) << ".ci/run is missing or empty";
+  std::istringstream lines(ci);
+  std::string last;
+  for (std::string line; std::getline(lines, line);)
+    if (!line.empty()) last = line;
+  EXPECT_EQ(blocks[1], last);
+}
+
+}  // namespace

@@ -1,0 +1,326 @@
+// The malformed-tape corpus (tests/tape/malformed/): one table row per file, saying exactly how
+// the reader must answer it: the TapeError for a file that cannot be a tape, or the one RowProblem
+// for a file with one bad row. Also checks that every file in the folder has a row here.
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <cctype>
+#include <filesystem>
+#include <fstream>
+#include <iterator>
+#include <optional>
+#include <set>
+#include <string>
+#include <vector>
+
+#include "tape/tape.h"
+
+namespace {
+
+using namespace poolbid;
+namespace fs = std::filesystem;
+
+const fs::path kCorpus = fs::path(POOLBID_SOURCE_DIR) / "tests" / "tape" / "malformed";
+
+// Files the folder holds that are not tapes or maps.
+const std::set<std::string> kNotCorpus = {"README.md"};
+
+// Every corpus tape has 5 data rows (L001..L005, tape rows 2..6) unless it cannot be read.
+constexpr std::size_t kRowsInCorpusTape = 5;
+
+// A file that cannot be read as a tape (or a map that cannot be read as a map).
+struct FileFault {
+  ErrorKind kind;
+  std::size_t row;          // TapeError::row; 0 when not about one row
+  std::string column;       // TapeError::column ("" when none; a map's key for bad_map)
+  std::string what_part;    // a fragment what() must contain
+};
+
+// A tape with exactly one problem, on one row.
+struct RowFault {
+  std::size_t row;          // tape row (header = row 1)
+  std::string loan_id;
+  std::string column;       // "" for a whole-row problem
+  std::string value;        // the cell as read (CSV quotes removed)
+  bool reject;
+  std::string reason_part;
+};
+
+struct Case {
+  std::string file;
+  std::optional<FileFault> file_fault;
+  std::optional<RowFault> row_fault;
+  std::size_t max_record_bytes = ReadOptions{}.max_record_bytes;
+};
+
+Case file_case(std::string file, FileFault fault, std::size_t max_record_bytes = 0) {
+  Case c{std::move(file), std::move(fault), std::nullopt};
+  if (max_record_bytes != 0) c.max_record_bytes = max_record_bytes;
+  return c;
+}
+
+Case row_case(std::string file, RowFault fault) {
+  return Case{std::move(file), std::nullopt, std::move(fault)};
+}
+
+// Row 4 is loan L003 in every corpus tape unless the table says otherwise.
+const std::vector<Case>& corpus_table() {
+  static const std::vector<Case> table = {
+      // ---- Files that are not tapes ------------------------------------------------------------
+      file_case("empty.csv", {ErrorKind::empty, 0, "", "the file is empty"}),
+      // source: the Unicode Standard: the byte-order mark U+FEFF, in UTF-8 the bytes EF BB BF.
+      file_case("bom-only.csv", {ErrorKind::empty, 0, "", "no header and no rows"}),
+      file_case("blank-lines-only.csv", {ErrorKind::empty, 0, "", "no header and no rows"}),
+      file_case("header-only.csv", {ErrorKind::no_data_rows, 0, "", "no data rows"}),
+      file_case("header-and-blank-lines.csv", {ErrorKind::no_data_rows, 0, "", "no data rows"}),
+      file_case("semicolon-delimited.csv",
+                {ErrorKind::wrong_delimiter, 0, "", "looks semicolon-delimited"}),
+      file_case("tab-delimited.csv", {ErrorKind::wrong_delimiter, 0, "", "looks tab-delimited"}),
+      file_case("pipe-delimited.csv", {ErrorKind::wrong_delimiter, 0, "", "looks pipe-delimited"}),
+      // Lines ending in a lone CR (old Mac "CSV" export): the file is one long line. The message
+      // must say so; "no data rows" sends the reader looking for a problem that is not there.
+      file_case("cr-line-endings.csv", {ErrorKind::wrong_delimiter, 0, "", "line end"}),
+      file_case("binary-nul.csv", {ErrorKind::binary, 0, "", "not a text file"}),
+      file_case("utf16.csv", {ErrorKind::binary, 0, "", "UTF-16"}),
+      // Line breaks lost after L001: rows L002..L005 run together into one 371-byte record.
+      // The committed file is small, so the limit is lowered; RunawayRowAtTheDefaultLimit below
+      // builds a 2 MiB row instead.
+      file_case("runaway-row.csv",
+                {ErrorKind::record_too_long, 3, "", "row is longer than 256 bytes"}, 256),
+      // source: RFC 4180 section 2, rules 5-7 (a field that opens with a quote runs to its
+      // closing quote).
+      file_case("unterminated-quote.csv",
+                {ErrorKind::unterminated_quote, 4, "", "never closed"}),
+      file_case("missing-loan-id-column.csv",
+                {ErrorKind::missing_column, 0, "", "no column for loan_id"}),
+      file_case("missing-remaining-term-column.csv",
+                {ErrorKind::missing_column, 0, "",
+                 "no column for remaining_term or maturity_date"}),
+      file_case("missing-servicing-fee-column.csv",
+                {ErrorKind::missing_column, 0, "", "no column for servicing_fee"}),
+      file_case("duplicate-column.csv",
+                {ErrorKind::duplicate_column, 1, "note_rate", "both give note_rate"}),
+      file_case("maturity-without-cutoff.csv",
+                {ErrorKind::bad_option, 0, "maturity_date", "give --cutoff"}),
+
+      // ---- Column maps that are not maps -------------------------------------------------------
+      file_case("bad-map-json.map.json", {ErrorKind::bad_map, 0, "", "not valid JSON"}),
+      file_case("bad-map-unknown-field.map.json",
+                {ErrorKind::bad_map, 0, "columns.current_upb", "unknown field name 'current_upb'"}),
+      file_case("bad-map-unknown-unit.map.json",
+                {ErrorKind::bad_map, 0, "units.note_rate", "unknown unit"}),
+      file_case("bad-map-cutoff.map.json", {ErrorKind::bad_map, 0, "cutoff_date", "not a date"}),
+      file_case("bad-map-fee-as-text.map.json",
+                {ErrorKind::bad_map, 0, "defaults.servicing_fee", "must be a number"}),
+
+      // ---- One rejected row --------------------------------------------------------------------
+      row_case("negative-balance.csv",
+               {4, "L003", "current_balance", "-145900.00", true, "not above 0"}),
+      row_case("zero-balance.csv", {4, "L003", "current_balance", "0.00", true, "not above 0"}),
+      // source: RFC 4180 section 2, rules 5-6 (the cell is quoted for its comma; the value is
+      // the text between the quotes).
+      row_case("unparsable-balance.csv",
+               {4, "L003", "current_balance", "145,9OO.00", true, "not a number"}),
+      row_case("rate-too-high.csv",
+               {4, "L003", "note_rate", "71.25", true, "note rate 71.25% outside 0-25%"}),
+      // "7,125" is 7.125% written with a decimal comma. Rates carry no thousands separators, so
+      // this is not 7125%: the reason must say the cell is not a number.
+      row_case("decimal-comma-rate.csv", {4, "L003", "note_rate", "7,125", true, "not a number"}),
+      // 0.07125 in a column of percent: the fault is the note rate, and the reason should say
+      // it looks like a decimal, not blame the servicing fee beside it.
+      row_case("decimal-rate-in-percent-column.csv",
+               {4, "L003", "note_rate", "0.07125", true, "a decimal in a percent column"}),
+      row_case("fee-above-rate.csv",
+               {4, "L003", "servicing_fee", "7.5", true, "not below note rate 7.125%"}),
+      row_case("required-field-blank.csv",
+               {4, "L003", "note_rate", "", true, "required field missing"}),
+      row_case("blank-loan-id.csv", {4, "", "loan_id", "", true, "required field missing"}),
+      row_case("fractional-term.csv",
+               {4, "L003", "original_term", "360.5", true, "not a whole number"}),
+      row_case("remaining-over-original.csv",
+               {4, "L003", "remaining_term", "372", true, "above the original term 360"}),
+      row_case("remaining-zero.csv",
+               {4, "L003", "remaining_term", "0", true, "remaining term 0 months not above 0"}),
+      row_case("negative-age.csv", {4, "L003", "loan_age", "-30", true, "below 0"}),
+      row_case("ltv-too-high.csv",
+               {4, "L003", "original_ltv", "900", true, "original LTV 900% outside 1-300%"}),
+      // 0.9 in a column of percent reads as 0.9%, below any first lien's LTV.
+      row_case("ltv-too-low.csv",
+               {4, "L003", "original_ltv", "0.9", true, "original LTV 0.9% outside 1-300%"}),
+      // common practice: credit scores on a tape run 300-850.
+      row_case("score-too-high.csv",
+               {4, "L003", "credit_score", "7050", true, "outside 300-850"}),
+      row_case("score-zero.csv", {4, "L003", "credit_score", "0", true, "outside 300-850"}),
+      row_case("dti-over-100.csv", {4, "L003", "dti", "410", true, "DTI 410% outside 0-100%"}),
+      // A decimal DTI column (0.36) with one cell written in percent (41): the column stays
+      // decimal and that one cell is 4100%, rather than every other loan's DTI becoming 0.36%.
+      row_case("dti-stray-percent.csv", {4, "L003", "dti", "41", true, "DTI 4100% outside 0-100%"}),
+      // source: USPS Publication 28, two-letter state abbreviations.
+      row_case("unknown-state.csv", {4, "L003", "state", "XX", true, "unknown state code"}),
+      row_case("state-full-name.csv",
+               {4, "L003", "state", "Florida", true, "unknown state code"}),
+      row_case("unknown-occupancy.csv",
+               {4, "L003", "occupancy", "S", true, "unknown occupancy 'S'"}),
+      // The lifetime cap is the highest note rate the loan allows; 4.5% under a 7.125% rate is
+      // not a cap at all (common practice).
+      row_case("arm-lifetime-cap-below-rate.csv",
+               {4, "L003", "arm_lifetime_cap", "4.5", true, "lifetime cap"}),
+      row_case("bad-date.csv",
+               {4, "L003", "property_value_date", "2024-02-30", true, "not a date"}),
+      row_case("duplicate-loan-id.csv",
+               {5, "L002", "loan_id", "L002", true, "duplicate loan id, first at row 3"}),
+      // A whole-row problem shows the row's first 60 bytes as its value.
+      row_case("ragged-row.csv",
+               {4, "L003", "", "L003,Harbor Bank,145900.00,160000.00,7.125,0.375,360,330,30,",
+                true, "row has 15 fields, header has 16"}),
+
+      // ---- One row accepted with a warning -----------------------------------------------------
+      row_case("term-mismatch-warning.csv",
+               {4, "L003", "remaining_term", "327", false,
+                "loan age 30 + remaining term 327 = 357 months, original term 360"}),
+      row_case("cltv-below-ltv-warning.csv",
+               {4, "L003", "combined_ltv", "80", false, "combined LTV 80% below original LTV 90%"}),
+      row_case("balance-above-original-warning.csv",
+               {4, "L003", "current_balance", "161250.00", false,
+                "current balance 161250.00 above original balance 160000.00"}),
+  };
+  return table;
+}
+
+// gtest prints a failing case by its file name.
+void PrintTo(const Case& c, std::ostream* os) { *os << c.file; }
+
+bool is_map(const std::string& file) {
+  return file.size() > 9 && file.compare(file.size() - 9, 9, ".map.json") == 0;
+}
+
+// Reads a corpus file as the table says: a map through load_column_map, a tape through read_tape.
+TapeRead read_corpus_file(const Case& c) {
+  const std::string path = (kCorpus / c.file).string();
+  if (is_map(c.file)) {
+    load_column_map(path);
+    ADD_FAILURE() << c.file << ": the map loaded without an error";
+    return {};
+  }
+  ReadOptions options;
+  options.max_record_bytes = c.max_record_bytes;
+  return read_tape(path, options);
+}
+
+class MalformedCorpus : public testing::TestWithParam<Case> {};
+
+TEST_P(MalformedCorpus, AnswersAsTheTableSays) {
+  const Case& c = GetParam();
+  ASSERT_TRUE(fs::is_regular_file(kCorpus / c.file)) << "missing corpus file " << c.file;
+  if (c.file_fault) {
+    const FileFault& want = *c.file_fault;
+    try {
+      const TapeRead t = read_corpus_file(c);
+      ADD_FAILURE() << c.file << ": read without a TapeError; " << t.rows_read << " rows read, "
+                    << t.problems.size() << " problems";
+    } catch (const TapeError& e) {
+      const std::string what = e.what();
+      EXPECT_EQ(to_string(e.kind), to_string(want.kind)) << what;
+      EXPECT_EQ(e.row, want.row) << what;
+      EXPECT_EQ(e.column, want.column) << what;
+      EXPECT_NE(what.find(want.what_part), std::string::npos) << what;
+      EXPECT_NE(what.find(c.file), std::string::npos) << "what() does not name the file: " << what;
+      EXPECT_NE(e.file.find(c.file), std::string::npos) << e.file;
+    }
+    return;
+  }
+
+  const RowFault& want = *c.row_fault;
+  TapeRead t;
+  try {
+    t = read_corpus_file(c);
+  } catch (const TapeError& e) {
+    FAIL() << c.file << ": unexpected TapeError: " << e.what();
+  }
+  EXPECT_EQ(t.rows_read, t.rows_accepted() + t.rows_rejected);
+  EXPECT_EQ(t.rows_read, kRowsInCorpusTape);
+  EXPECT_EQ(t.rows_rejected, want.reject ? 1u : 0u);
+  EXPECT_EQ(t.rows_with_warnings, want.reject ? 0u : 1u);
+  // One fault per file: exactly one problem, so the file tests one rule and nothing else.
+  ASSERT_EQ(t.problems.size(), 1u) << [&] {
+    std::string all;
+    for (const RowProblem& p : t.problems)
+      all += "\n  row " + std::to_string(p.row) + " " + p.column + " '" + p.value +
+             "': " + p.reason;
+    return all;
+  }();
+  const RowProblem& p = t.problems.front();
+  EXPECT_EQ(p.row, want.row);
+  EXPECT_EQ(p.loan_id, want.loan_id);
+  EXPECT_EQ(p.column, want.column);
+  if (want.column.empty()) {
+    EXPECT_FALSE(p.field.has_value());
+  } else {
+    ASSERT_TRUE(p.field.has_value());
+    EXPECT_EQ(field_name(*p.field), want.column);  // corpus headers are the canonical names
+  }
+  EXPECT_EQ(p.value, want.value);
+  EXPECT_EQ(p.reject, want.reject) << p.reason;
+  EXPECT_NE(p.reason.find(want.reason_part), std::string::npos) << p.reason;
+  // The row the problem names is not among the loans when rejected, and is when only warned.
+  const auto& rows = t.loans.row;
+  const bool kept = std::find(rows.begin(), rows.end(), want.row) != rows.end();
+  EXPECT_EQ(kept, !want.reject);
+}
+
+std::string test_name(const testing::TestParamInfo<Case>& info) {
+  std::string name = info.param.file;
+  for (char& ch : name)
+    if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
+  return name;
+}
+
+INSTANTIATE_TEST_SUITE_P(Files, MalformedCorpus, testing::ValuesIn(corpus_table()), test_name);
+
+TEST(MalformedCorpusFolder, EveryFileHasATableRowAndEveryRowAFile) {
+  std::set<std::string> in_table;
+  for (const Case& c : corpus_table()) {
+    EXPECT_TRUE(in_table.insert(c.file).second) << c.file << " is in the table twice";
+    EXPECT_NE(c.file_fault.has_value(), c.row_fault.has_value()) << c.file;
+  }
+  std::set<std::string> in_folder;
+  for (const fs::directory_entry& entry : fs::directory_iterator(kCorpus)) {
+    const std::string name = entry.path().filename().string();
+    if (kNotCorpus.count(name)) continue;
+    in_folder.insert(name);
+    EXPECT_TRUE(in_table.count(name)) << name << " is in " << kCorpus << " but not in the table";
+  }
+  for (const std::string& name : in_table)
+    EXPECT_TRUE(in_folder.count(name)) << name << " is in the table but not in the folder";
+  EXPECT_GE(in_folder.size(), 24u);
+}
+
+TEST(MalformedCorpusFolder, ReadmeHasALinePerFile) {
+  std::ifstream in(kCorpus / "README.md");
+  ASSERT_TRUE(in) << "no README.md in " << kCorpus;
+  const std::string readme((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  for (const Case& c : corpus_table())
+    EXPECT_NE(readme.find("`" + c.file + "`"), std::string::npos) << c.file << " not in README.md";
+}
+
+// The same runaway as runaway-row.csv at the default limit: a 2 MiB row with no line end
+// inside it, built here rather than committed.
+TEST(MalformedCorpusGenerated, RunawayRowAtTheDefaultLimit) {
+  const std::string header =
+      "loan_id,seller,current_balance,original_balance,note_rate,servicing_fee,original_term,"
+      "remaining_term,loan_age,credit_score,original_ltv,combined_ltv,dti,occupancy,"
+      "property_value_date,state\n";
+  const std::string good =
+      "L001,Harbor Bank,200000.00,250000.00,6.5,0.25,360,348,12,740,80,80,36,owner,2025-11-15,CA\n";
+  const std::string runaway = "L002,Harbor Bank," + std::string(std::size_t{2} << 20, 'x') + "\n";
+  try {
+    read_tape_text(header + good + runaway + good, "runaway-2mib.csv");
+    ADD_FAILURE() << "a 2 MiB row was read";
+  } catch (const TapeError& e) {
+    EXPECT_EQ(e.kind, ErrorKind::record_too_long) << e.what();
+    EXPECT_EQ(e.row, 3u);
+    EXPECT_NE(std::string(e.what()).find("runaway-2mib.csv row 3"), std::string::npos) << e.what();
+  }
+}
+
+}  // namespace
