@@ -90,7 +90,8 @@ struct TapeArgs {
       options.cutoff = parse_date(cutoff);
       if (!options.cutoff)
         throw TapeError(ErrorKind::bad_option, "", 0, "--cutoff", cutoff,
-                        "--cutoff wants a date as YYYY-MM-DD or M/D/YYYY");
+                        fmt::format("--cutoff '{}': wants a date as YYYY-MM-DD or M/D/YYYY",
+                                    cutoff));
     }
     if (servicing_fee_percent >= 0) options.default_servicing_fee = servicing_fee_percent / 100;
     return options;

@@ -181,6 +181,8 @@ std::string strats_json(const TapeRead& tape, const Strats& strats) {
       {"combined_ltv", average_json(strats.combined_ltv)},
       {"dti", average_json(strats.dti)},
       {"tables", std::move(tables)},
+      {"rows_read", tape.rows_read},
+      {"rows_accepted", tape.rows_accepted()},
       {"rows_rejected", tape.rows_rejected},
       {"upb_rejected", detail::number_or_null(tape.upb_rejected)},
       {"rejects", std::move(rejects)},

@@ -212,7 +212,8 @@ TEST(StratsJson, HasEveryKeyAndNaNIsNull) {
   const json doc = json::parse(strats_json(tape, strats));
   expect_keys(doc, {"file", "cutoff_date", "loans", "upb", "average_upb", "wac", "wam", "wala",
                     "credit_score", "original_ltv", "combined_ltv", "dti", "tables",
-                    "rows_rejected", "upb_rejected", "rejects", "caution"});
+                    "rows_read", "rows_accepted", "rows_rejected", "upb_rejected", "rejects",
+                    "caution"});
   for (const char* key :
        {"wac", "wam", "wala", "credit_score", "original_ltv", "combined_ltv", "dti"})
     expect_keys(doc[key], {"value", "missing"});
