@@ -5,6 +5,7 @@
 
 #include <cstdio>
 #include <filesystem>
+#include <functional>
 #include <fstream>
 #include <iostream>
 #include <optional>
@@ -43,27 +44,36 @@ struct WriteError : std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
-// Writes `text` to `path` through a temporary file renamed into place, so a failure leaves no
-// partial file. Throws std::runtime_error naming the file.
-void write_file_whole(const std::string& path, const std::string& text) {
+// Writes a file through a temporary `PATH.partial` renamed into place, so a failure leaves no
+// partial file. `write` fills the stream. Throws WriteError naming the file.
+void write_file_whole(const std::string& path, const std::function<void(std::ostream&)>& write) {
   const std::string temp = path + ".partial";
+  std::error_code ignored;
   {
     std::ofstream out(temp, std::ios::binary | std::ios::trunc);
     if (!out) throw WriteError(fmt::format("cannot write '{}'", path));
-    out.write(text.data(), static_cast<std::streamsize>(text.size()));
+    write(out);
     out.flush();
     if (!out) {
       out.close();
-      std::filesystem::remove(temp);
+      std::filesystem::remove(temp, ignored);
       throw WriteError(fmt::format("cannot write '{}' (disk full?)", path));
     }
   }
   std::error_code ec;
   std::filesystem::rename(temp, path, ec);
   if (ec) {
-    std::filesystem::remove(temp);
+    std::filesystem::remove(temp, ignored);
     throw WriteError(fmt::format("cannot write '{}': {}", path, ec.message()));
   }
+}
+
+// Writes a whole document to standard output. Throws WriteError if it did not all get there
+// (a closed pipe, a full disk behind a redirection).
+void write_stdout(std::string_view document) {
+  const std::size_t written = std::fwrite(document.data(), 1, document.size(), stdout);
+  if (written != document.size() || std::fflush(stdout) != 0 || std::ferror(stdout))
+    throw WriteError("cannot write to standard output");
 }
 
 // Options shared by every command that reads a tape.
@@ -71,7 +81,7 @@ struct TapeArgs {
   std::string tape;
   std::string map;
   std::string cutoff;
-  double servicing_fee_percent = -1;
+  std::optional<double> servicing_fee_percent;
   bool json = false;
 
   void add_to(CLI::App& cmd) {
@@ -79,7 +89,7 @@ struct TapeArgs {
     cmd.add_option("--map", map, "column map (JSON): the seller's header names and spellings");
     cmd.add_option("--cutoff", cutoff, "cut-off date YYYY-MM-DD (needed for date-only terms)");
     cmd.add_option("--servicing-fee", servicing_fee_percent,
-                   "pool servicing fee in percent per year, where the tape has none");
+                   "pool servicing fee in percent per year (0.25), where the tape has none");
     cmd.add_flag("--json", json, "write JSON instead of text");
   }
 
@@ -93,14 +103,20 @@ struct TapeArgs {
                         fmt::format("--cutoff '{}': wants a date as YYYY-MM-DD or M/D/YYYY",
                                     cutoff));
     }
-    if (servicing_fee_percent >= 0) options.default_servicing_fee = servicing_fee_percent / 100;
+    if (servicing_fee_percent) {
+      const double fee = *servicing_fee_percent;
+      if (!(fee >= 0 && fee < 25))
+        throw TapeError(ErrorKind::bad_option, "", 0, "--servicing-fee", fmt::format("{}", fee),
+                        fmt::format("--servicing-fee '{}': wants a percent from 0 to below 25",
+                                    fee));
+      options.default_servicing_fee = fee / 100;
+    }
     return options;
   }
 };
 
 int finish_tape_command(const TapeRead& tape, const std::string& document) {
-  std::fwrite(document.data(), 1, document.size(), stdout);
-  std::fflush(stdout);
+  write_stdout(document);
   return tape.rows_rejected > 0 ? kRowsRejected : kOk;
 }
 
@@ -155,12 +171,12 @@ int run(int argc, char** argv) {
       demo.profile = demo_profile == "loose" ? DemoProfile::loose : DemoProfile::strict;
       demo.layout = demo_layout == "seller-coded" ? DemoLayout::seller_coded
                                                   : DemoLayout::canonical;
-      std::ostringstream text;
-      write_demo_tape(text, demo);
       if (demo_out.empty()) {
-        std::cout << text.str();
+        std::ostringstream text;  // whole, so a failed write is all or nothing on our side
+        write_demo_tape(text, demo);
+        write_stdout(text.str());
       } else {
-        write_file_whole(demo_out, text.str());
+        write_file_whole(demo_out, [&](std::ostream& out) { write_demo_tape(out, demo); });
       }
       return kOk;
     }
@@ -171,7 +187,7 @@ int run(int argc, char** argv) {
     fmt::print(stderr, "poolbid: {}\n", e.what());
     return kCannotWrite;
   }
-  return kUsage;
+  return kUsage;  // require_subcommand(1) makes this unreachable
 }
 
 }  // namespace

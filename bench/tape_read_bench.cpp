@@ -1,9 +1,10 @@
 // Speed of reading and validating a loan tape (100k and 1M loans), and of writing demo tapes.
 //
-// The tapes are invented loose-profile canonical demo tapes, written once to bench/data/ (ignored
-// by git) and reused; the 1M-loan one goes to $POOLBID_BENCH_TAPE instead when that is set.
-// Delete them after changing the generator. Reports rows/s (items), bytes/s, and the process's
-// peak resident memory so far (getrusage ru_maxrss) in MiB.
+// The tapes are invented loose-profile canonical demo tapes, written once to bench-data/ in the
+// build folder and reused; the 1M-loan one goes to $POOLBID_BENCH_TAPE instead when that is set.
+// Delete them after changing the generator. Reports rows/s (items) and bytes/s on wall-clock
+// time, and the process's peak resident memory so far (getrusage ru_maxrss) in MiB: a high-water
+// mark, so run one benchmark alone (--benchmark_filter) to read its own peak.
 #include <benchmark/benchmark.h>
 #include <sys/resource.h>
 
@@ -33,7 +34,7 @@ std::string tape_path(std::size_t loans) {
   if (loans == 1000000) {
     if (const char* path = std::getenv("POOLBID_BENCH_TAPE"); path && *path) return path;
   }
-  return std::string(POOLBID_SOURCE_DIR) + "/bench/data/loose-canonical-" +
+  return std::string(POOLBID_BENCH_DATA) + "/loose-canonical-" +
          std::to_string(loans) + "-seed" + std::to_string(kSeed) + ".csv";
 }
 
@@ -77,7 +78,11 @@ void BM_write_demo_tape(benchmark::State& state) {
   state.SetBytesProcessed(state.iterations() * bytes);
   state.counters["peak_rss_MiB"] = peak_rss_mib();
 }
-BENCHMARK(BM_write_demo_tape)->Arg(100000)->Unit(benchmark::kMillisecond)->Iterations(3);
+BENCHMARK(BM_write_demo_tape)
+    ->Arg(100000)
+    ->Unit(benchmark::kMillisecond)
+    ->Iterations(3)
+    ->UseRealTime();
 
 void BM_read_tape(benchmark::State& state) {
   const auto loans = static_cast<std::size_t>(state.range(0));
@@ -97,7 +102,12 @@ void BM_read_tape(benchmark::State& state) {
   state.SetBytesProcessed(state.iterations() * bytes);
   state.counters["peak_rss_MiB"] = peak_rss_mib();
 }
-BENCHMARK(BM_read_tape)->Arg(100000)->Arg(1000000)->Unit(benchmark::kMillisecond)->Iterations(3);
+BENCHMARK(BM_read_tape)
+    ->Arg(100000)
+    ->Arg(1000000)
+    ->Unit(benchmark::kMillisecond)
+    ->Iterations(3)
+    ->UseRealTime();
 
 }  // namespace
 

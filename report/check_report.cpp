@@ -16,14 +16,9 @@ namespace {
 using detail::Align;
 using detail::Json;
 
-constexpr std::size_t kLoanIdWidth = 24;  // longer loan ids and cell values are cut ("...")
-constexpr std::size_t kValueWidth = 32;
-
-std::string cutoff_text(const TapeRead& tape) {
-  return tape.cutoff ? detail::iso_date(*tape.cutoff) : std::string("not given");
-}
-
-std::string count_text(std::size_t n) { return detail::with_thousands(static_cast<double>(n), 0); }
+using detail::count_text;
+using detail::kLoanIdWidth;
+using detail::kValueWidth;
 
 }  // namespace
 
@@ -35,7 +30,8 @@ std::string_view caution_text() {
 
 std::string check_text(const TapeRead& tape) {
   std::string out = fmt::format("poolbid check: {}\ncut-off date: {}\n\n",
-                                detail::display_text(tape.file, 200), cutoff_text(tape));
+                                detail::display_text(tape.file, 200),
+                                detail::cutoff_text(tape.cutoff));
 
   detail::TextTable counts{{}, {Align::left, Align::right}, {}};
   counts.rows = {
@@ -92,7 +88,7 @@ std::string check_json(const TapeRead& tape) {
   for (const RowProblem& p : tape.problems) problems.push_back(detail::problem_json(p));
   Json document = {
       {"file", tape.file},
-      {"cutoff_date", tape.cutoff ? Json(detail::iso_date(*tape.cutoff)) : Json(nullptr)},
+      {"cutoff_date", detail::cutoff_json(tape.cutoff)},
       {"rows_read", tape.rows_read},
       {"rows_accepted", tape.rows_accepted()},
       {"rows_rejected", tape.rows_rejected},

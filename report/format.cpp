@@ -85,6 +85,30 @@ std::string iso_date(const Date& date) {
                      static_cast<unsigned>(date.month()), static_cast<unsigned>(date.day()));
 }
 
+std::string count_text(std::size_t n) { return with_thousands(static_cast<double>(n), 0); }
+
+std::string cutoff_text(const std::optional<Date>& cutoff) {
+  return cutoff ? iso_date(*cutoff) : std::string("not given");
+}
+
+std::string_view plain_label(std::string_view code) {
+  struct Label {
+    std::string_view code, plain;
+  };
+  static constexpr Label kLabels[] = {
+      {"unknown", "missing"},           {"second_home", "second home"},
+      {"rate_term_refi", "rate/term refi"}, {"cash_out_refi", "cash-out refi"},
+      {"single_family", "single family"}, {"pud", "PUD"},
+      {"two_to_four", "2-4 unit"},      {"coop", "co-op"},
+      {"arm", "ARM"},                   {"interest_only", "interest-only"},
+      {"30", "30 days"},                {"60", "60 days"},
+      {"90+", "90+ days"},
+  };
+  for (const Label& label : kLabels)
+    if (label.code == code) return label.plain;
+  return code;
+}
+
 std::string count_of(std::size_t n, std::string_view singular, std::string_view plural) {
   return fmt::format("{} {}", with_thousands(static_cast<double>(n), 0),
                      n == 1 ? singular : plural);
@@ -174,6 +198,10 @@ std::string render(const TextTable& table, std::string_view indent) {
   if (!table.headers.empty()) write_line(table.headers);
   for (const auto& row : table.rows) write_line(row);
   return out;
+}
+
+Json cutoff_json(const std::optional<Date>& cutoff) {
+  return cutoff ? Json(iso_date(*cutoff)) : Json(nullptr);
 }
 
 Json number_or_null(double x) {

@@ -3,6 +3,7 @@
 #pragma once
 
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -22,6 +23,10 @@ std::string dollars(double x);
 std::string fixed_or_dash(double x, int decimals);
 // "2026-12-01".
 std::string iso_date(const Date& date);
+// 1234567 -> "1,234,567".
+std::string count_text(std::size_t n);
+// "2026-12-01", or "not given".
+std::string cutoff_text(const std::optional<Date>& cutoff);
 // "1 row" / "3 rows".
 std::string count_of(std::size_t n, std::string_view singular, std::string_view plural);
 
@@ -31,6 +36,15 @@ std::string count_of(std::size_t n, std::string_view singular, std::string_view 
 // in "...". Empty text becomes `if_empty`.
 std::string display_text(std::string_view text, std::size_t max_width,
                          std::string_view if_empty = "");
+// Loan ids and cell values longer than these are cut ("...") in text tables.
+inline constexpr std::size_t kLoanIdWidth = 24;
+inline constexpr std::size_t kValueWidth = 32;
+
+// Plain English for a category code in text tables: "cash_out_refi" -> "cash-out refi",
+// "two_to_four" -> "2-4 unit", "30" -> "30 days", "unknown" -> "missing". Other text unchanged.
+// JSON keeps the codes.
+std::string_view plain_label(std::string_view code);
+
 // Code points in valid UTF-8 text (what display_text returns): the width used for alignment.
 std::size_t display_width(std::string_view text);
 
@@ -49,6 +63,8 @@ std::string render(const TextTable& table, std::string_view indent = "  ");
 // Objects keep their keys in the order written, so documents read in the order they are described.
 using Json = nlohmann::ordered_json;
 
+// "2026-12-01", or null.
+Json cutoff_json(const std::optional<Date>& cutoff);
 // A number, or null when NaN or infinite.
 Json number_or_null(double x);
 // {"row","loan_id","field","column","value","reason","severity": "reject" | "warning"};

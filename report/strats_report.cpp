@@ -21,13 +21,12 @@ using detail::Align;
 using detail::Json;
 
 constexpr std::size_t kRejectsShown = 20;
-constexpr std::size_t kLoanIdWidth = 24;
+using detail::count_text;
+using detail::kLoanIdWidth;
 
 std::string percent(double ratio, int decimals) {
   return detail::fixed_or_dash(ratio * 100, decimals);
 }
-
-std::string count_text(std::size_t n) { return detail::with_thousands(static_cast<double>(n), 0); }
 
 // One rejected row: its number, loan id and every rejecting reason, "; "-joined.
 struct RejectedRow {
@@ -75,13 +74,13 @@ std::vector<std::string> row_cells(std::string label, std::size_t count, double 
 // One table: the title heads the label column; a total line closes it.
 std::string table_text(const StratTable& t, const Strats& s) {
   detail::TextTable table{
-      {t.title, "loans", "UPB ($)", "% UPB", "WAC %", "WA score", "WA LTV %"},
+      {t.title, "loans", "UPB ($)", "% UPB", "WAC %", "WA score", "WA orig LTV %"},
       {Align::left, Align::right, Align::right, Align::right, Align::right, Align::right,
        Align::right},
       {}};
   for (const StratRow& r : t.rows)
-    table.rows.push_back(row_cells(detail::display_text(r.label, 40), r.count, r.upb,
-                                   r.upb_share, r.wac, r.wa_score, r.wa_ltv));
+    table.rows.push_back(row_cells(detail::display_text(detail::plain_label(r.label), 40),
+                                   r.count, r.upb, r.upb_share, r.wac, r.wa_score, r.wa_ltv));
   if (t.rows.empty()) {
     table.rows.push_back({"(no loans)", "", "", "", "", "", ""});
   } else {
@@ -134,7 +133,7 @@ Json average_json(const WeightedAverage& wa) {
 std::string strats_text(const TapeRead& tape, const Strats& strats) {
   std::string out = fmt::format(
       "poolbid strats: {}\ncut-off date: {}\n\npool\n", detail::display_text(tape.file, 200),
-      tape.cutoff ? detail::iso_date(*tape.cutoff) : std::string("not given"));
+      detail::cutoff_text(tape.cutoff));
   out += summary_text(strats);
   for (const StratTable& t : strats.tables) {
     out += '\n';
@@ -169,7 +168,7 @@ std::string strats_json(const TapeRead& tape, const Strats& strats) {
 
   Json document = {
       {"file", tape.file},
-      {"cutoff_date", tape.cutoff ? Json(detail::iso_date(*tape.cutoff)) : Json(nullptr)},
+      {"cutoff_date", detail::cutoff_json(tape.cutoff)},
       {"loans", strats.loans},
       {"upb", detail::number_or_null(strats.upb)},
       {"average_upb", detail::number_or_null(strats.average_upb)},
