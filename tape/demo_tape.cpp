@@ -11,8 +11,8 @@
 // and ratios in hundredths of a percent, so amortisation and printing are exact integer work; only
 // the normal and lognormal draws go through the C library's log, cos and exp. Their last bit may
 // differ between C libraries, but every draw is then rounded (whole score points, 1/8 percent,
-// $50, 0.01 percent), so output changes only if a draw sits on a rounding edge. Checked here: the
-// same bytes at -O0, -O3 and with floating-point contraction (FMA) on.
+// $50, 0.01 percent), so output changes only if a draw sits on a rounding edge. The committed demo
+// tapes are regenerated and compared byte for byte by tests/tape/demo_tape_test.cpp.
 //
 // Planted problems (`bad_rows`): loans after the first, evenly spaced, cycling through twelve ways
 // to be rejected, then two loans that only warn (see Writer::plant).
