@@ -28,14 +28,25 @@ std::string shown(const json& value) {
   return value.is_string() ? value.get<std::string>() : value.dump();
 }
 
+// A JSON value as written, for "got ..." in a message: strings keep their quotes; long values
+// are cut.
+std::string got(const json& value) {
+  constexpr std::size_t kShown = 60;
+  std::string text = value.dump();
+  if (text.size() > kShown) text = text.substr(0, kShown) + "...";
+  return text;
+}
+
 const json& object_at(const json& parent, const std::string& key, std::string_view source) {
   const json& value = parent.at(key);
-  if (!value.is_object()) bad_map(source, key, shown(value), "must be a JSON object");
+  if (!value.is_object())
+    bad_map(source, key, shown(value), fmt::format("must be a JSON object, got {}", got(value)));
   return value;
 }
 
 std::string string_at(const json& value, std::string_view key, std::string_view source) {
-  if (!value.is_string()) bad_map(source, key, shown(value), "must be a string");
+  if (!value.is_string())
+    bad_map(source, key, shown(value), fmt::format("must be a string, got {}", got(value)));
   std::string text = value.get<std::string>();
   if (std::string(detail::trim_spaces(text)).empty())
     bad_map(source, key, text, "must not be empty");
@@ -78,14 +89,15 @@ void read_units(const json& units, ColumnMap& map) {
     const std::string key = "units." + name;
     const Field f = field_at(name, key, map.source);
     if (!detail::is_rate_field(f))
-      bad_map(map.source, key, name, "units apply only to rate and ratio fields");
-    const std::string unit = value.is_string() ? value.get<std::string>() : shown(value);
+      bad_map(map.source, key, name,
+              fmt::format("units apply only to rate and ratio fields, not {}", name));
+    const std::string unit = shown(value);
     if (unit == "percent")
       map.units[f] = Unit::percent;
     else if (unit == "decimal")
       map.units[f] = Unit::decimal;
     else
-      bad_map(map.source, key, unit, "unknown unit: use \"percent\" or \"decimal\"");
+      bad_map(map.source, key, unit, fmt::format("unknown unit '{}' (percent or decimal)", unit));
   }
 }
 
@@ -94,8 +106,11 @@ void read_values(const json& values, ColumnMap& map) {
     const std::string key = "values." + name;
     const Field f = field_at(name, key, map.source);
     if (!detail::is_category(f))
-      bad_map(map.source, key, name, "values apply only to category fields");
-    if (!spellings.is_object()) bad_map(map.source, key, shown(spellings), "must be a JSON object");
+      bad_map(map.source, key, name,
+              fmt::format("values apply only to category fields, not {}", name));
+    if (!spellings.is_object())
+      bad_map(map.source, key, shown(spellings),
+              fmt::format("must be a JSON object, got {}", got(spellings)));
     auto& table = map.values[f];
     std::map<std::string, std::uint8_t> folded_targets;  // spellings are compared folded
     for (const auto& [seller_spelling, ours] : spellings.items()) {
@@ -120,10 +135,16 @@ void read_defaults(const json& defaults, ColumnMap& map) {
   for (const auto& [name, value] : defaults.items()) {
     const std::string key = "defaults." + name;
     if (name != "servicing_fee")
-      bad_map(map.source, key, name, "the only default is servicing_fee (percent per year)");
-    if (!value.is_number() || value.get<double>() < 0 || value.get<double>() >= 25)
+      bad_map(map.source, key, name,
+              fmt::format("no default for {}: the only default is servicing_fee (percent per "
+                          "year)",
+                          name));
+    if (!value.is_number())
+      bad_map(map.source, key, shown(value), fmt::format("must be a number, got {}", got(value)));
+    if (!(value.get<double>() >= 0 && value.get<double>() < 25))
       bad_map(map.source, key, shown(value),
-              "must be a number of percent per year, from 0 to below 25 (0.25 = 0.25%)");
+              fmt::format("must be percent per year from 0 to below 25 (0.25 = 0.25%), got {}",
+                          got(value)));
     map.default_servicing_fee = value.get<double>() / 100;
   }
 }
@@ -144,14 +165,17 @@ ColumnMap parse_column_map(std::string_view json_text, std::string_view source_n
     throw TapeError(ErrorKind::bad_map, map.source, 0, "", "",
                     fmt::format("{}: not valid JSON (byte {}): {}", map.source, e.byte, what));
   }
-  if (!doc.is_object()) bad_map(map.source, "", "", "must be a JSON object {...}");
+  if (!doc.is_object())
+    bad_map(map.source, "", "", fmt::format("must be a JSON object {{...}}, got {}", got(doc)));
   for (const auto& [key, value] : doc.items()) {
     if (key == "seller") {
       map.seller = string_at(value, key, map.source);
     } else if (key == "cutoff_date") {
       const std::string text = string_at(value, key, map.source);
       map.cutoff = parse_date(text);
-      if (!map.cutoff) bad_map(map.source, key, text, "not a date (YYYY-MM-DD or M/D/YYYY)");
+      if (!map.cutoff)
+        bad_map(map.source, key, text,
+                fmt::format("'{}' is not a date (YYYY-MM-DD or M/D/YYYY)", text));
     } else if (key == "columns") {
       read_columns(object_at(doc, key, map.source), map);
     } else if (key == "units") {
@@ -162,7 +186,9 @@ ColumnMap parse_column_map(std::string_view json_text, std::string_view source_n
       read_defaults(object_at(doc, key, map.source), map);
     } else {
       bad_map(map.source, key, "",
-              "unknown key: use seller, cutoff_date, columns, units, values, defaults");
+              fmt::format("unknown key '{}': use seller, cutoff_date, columns, units, values, "
+                          "defaults",
+                          key));
     }
   }
   return map;

@@ -85,6 +85,15 @@ std::size_t drop_line_cr(const CsvScanner& s, std::size_t from, std::size_t to) 
   return (line_ends && to > from && s.text[to - 1] == '\r') ? to - 1 : to;
 }
 
+// A record whose every field is empty or spaces (",,,,", "   ", "\"\",\"\""). Only a record that
+// starts with ',', ' ' or '"' can be one, so other records cost one comparison of their first byte.
+bool only_commas_and_spaces(char first, const CsvRecord& record) {
+  if (first != ',' && first != ' ' && first != '"') return false;
+  for (std::string_view field : record.fields)
+    if (!trim_spaces(field).empty()) return false;
+  return true;
+}
+
 void finish_record(CsvScanner& s, CsvRecord& out, std::size_t start, std::size_t raw_end) {
   out.row = s.next_row++;
   out.offset = start;
@@ -257,6 +266,12 @@ bool next_record(CsvScanner& s, CsvRecord& out) {
       }
     }
     if (raw_end - start > s.max_record_bytes) throw_too_long(s, s.next_row);
+    if (only_commas_and_spaces(s.text[start], out)) {  // a spreadsheet's leftover row: blank
+      ++s.blank_lines;
+      ++s.next_row;
+      s.pos = record_end + 1;
+      continue;
+    }
     finish_record(s, out, start, raw_end);
     s.pos = record_end + 1;
     return true;

@@ -7,9 +7,10 @@
 //   ("ab"cd -> abcd), and a '"' inside a field that does not start with one is kept literally.
 // - A UTF-8 byte-order mark at the start of the text is skipped.
 // - Row numbers count records: the first record is row 1 and each record is the next row; a
-//   newline inside a quoted field does not start a new row. A fully blank line (empty, or only
-//   "\r") is skipped and counted, but uses up a row number, so row = line number in a file whose
-//   fields hold no newlines (a blank line before the header makes the header row 2).
+//   newline inside a quoted field does not start a new row. A blank line (empty, only "\r", or
+//   a record whose fields are all empty or spaces, like the ",,,," a spreadsheet leaves) is
+//   skipped and counted, but uses up a row number, so row = line number in a file whose fields
+//   hold no newlines (a blank line before the header makes the header row 2).
 // Fields are views into the text, or into the scanner's scratch for the few quoted fields that
 // need unescaping (doubled quotes, text after the closing quote); they stay valid until the next
 // call. No allocation per field once the buffers have grown.

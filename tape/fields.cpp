@@ -326,7 +326,7 @@ double decimal_detection_ceiling(Field f) {
     case Field::arm_periodic_cap: return 0.15;   // periodic caps 1%-2%
     case Field::arm_lifetime_cap: return 0.30;   // caps 5%-6% over the start rate, or 10%-13%
     case Field::arm_floor: return 0.30;
-    default: return 1.0;                         // DESIGN.md section 2: all values <= 1 -> decimal
+    default: return 1.0;                         // DESIGN.md section 2: values <= 1 -> decimal
   }
 }
 

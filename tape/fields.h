@@ -27,9 +27,11 @@ std::string_view category_spellings(Field f);
 // Rate and ratio fields: written in percent or decimal on a tape.
 bool is_rate_field(Field f);
 
-// A column of field f whose every value is at or below this is read as decimal when its unit is
-// not declared: 1.0 for note rates, LTV and DTI (DESIGN.md section 2); smaller for fields whose
-// percent values are themselves small (a 0.25% servicing fee, a 2% periodic cap).
+// A value of field f written without '%' looks like a decimal at or below this, like percent
+// above it. A column whose unit is not declared is read as most of its cells look (read_tape.cpp,
+// apply_units), and a cell that looks otherwise than its column is reported. 1.0 for note rates,
+// LTV and DTI (DESIGN.md section 2); smaller for fields whose percent values are themselves small
+// (a 0.25% servicing fee, a 2% periodic cap).
 double decimal_detection_ceiling(Field f);
 
 }  // namespace poolbid::detail

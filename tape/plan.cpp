@@ -130,6 +130,7 @@ std::vector<Step> steps_for(const ColumnIndex& columns, const Plan& plan, bool m
                     step.kind == CellKind::whole || step.kind == CellKind::score;
       if (step.number && step.kind != CellKind::whole) step.doubles = double_vector(f);
       if (step.kind == CellKind::whole) step.ints = int_vector(f);
+      if (step.kind == CellKind::rate) step.decimal_ceiling = decimal_detection_ceiling(f);
       steps.push_back(step);
     }
   }

@@ -1,9 +1,11 @@
 // The pass over a tape's text: each record's cells into the staging arrays, with the rejects
-// found on the way (unparsable or missing cells, unknown spellings, duplicate ids, ragged rows).
+// found on the way (unparsable or missing cells, unknown spellings, duplicate ids, ragged rows,
+// the header repeated).
 // Nothing per field is allocated; loan ids are checked for duplicates in a table sized up front.
 #include <fmt/core.h>
 
 #include <algorithm>
+#include <cctype>
 #include <functional>
 
 #include "tape/fields.h"
@@ -12,7 +14,8 @@
 namespace poolbid::detail {
 namespace {
 
-constexpr std::size_t kRaggedValueBytes = 60;   // of a ragged row, shown as its value
+constexpr std::size_t kRaggedValueBytes = 60;   // of a row rejected whole, shown as its value
+constexpr std::string_view kByteOrderMark = "\xEF\xBB\xBF";
 constexpr std::size_t kCategoryCacheSize = 64;  // distinct spellings remembered per column
 
 // Loan ids seen so far: open addressing over staging indexes, each slot (hash << 32 | index + 1),
@@ -86,6 +89,7 @@ struct Reading {
   std::size_t staged = 0;  // rows in staging; its vectors may be longer
   IdTable ids;
   std::array<CategoryCache, kFieldCount> categories;
+  std::vector<std::string> lowered_header;  // header cells, lower case, to spot it repeated
 };
 
 // What one row has read so far, beyond the staging arrays.
@@ -164,6 +168,11 @@ void read_number_cell(Reading& r, RowContext& row, const Step& step, std::string
     if (step.kind != CellKind::money && text.find(',') != std::string_view::npos)
       return reject_cell(r, row, f, cell,
                          "not a number (a comma is a thousands separator only in dollar amounts)");
+    // "1e5" is a number to a program, but a seller writes dollars out; an exponent in a dollar
+    // amount is a spreadsheet's display of a cell, not the amount.
+    if (step.kind == CellKind::money && text.find_first_of("eE") != std::string_view::npos)
+      return reject_cell(r, row, f, cell,
+                         "not a number (dollar amounts are not read in exponent notation)");
     const std::optional<Number> number = parse_number(text);
     if (!number || (number->percent && step.kind != CellKind::rate))
       return reject_cell(r, row, f, cell, "not a number");
@@ -182,12 +191,16 @@ void read_number_cell(Reading& r, RowContext& row, const Step& step, std::string
     (l.*step.doubles)[i] = value;
   }
   if (step.kind == CellKind::rate) {
-    const std::size_t k = static_cast<std::size_t>(f);
     if (percent) {
       r.out.staging.percent[i] |= bit(f);
-    } else if (!r.out.any_plain[k] || value > r.out.largest_plain[k]) {
-      r.out.largest_plain[k] = value;
-      r.out.any_plain[k] = true;
+    } else {
+      UnitVotes& votes = r.out.votes[static_cast<std::size_t>(f)];
+      if (value > step.decimal_ceiling)
+        ++votes.percent;
+      else if (value > 0)
+        ++votes.decimal;
+      else
+        ++votes.not_voting;
     }
   }
   r.out.staging.given[i] |= bit(f);
@@ -311,16 +324,49 @@ std::string_view utf8_prefix(std::string_view text, std::size_t bytes) {
   return text.substr(0, bytes);
 }
 
+// A whole-row reject: the row is not staged, and its first bytes stand for its value.
+void reject_whole_row(Reading& r, const CsvRecord& record, std::string_view loan_id,
+                      std::string reason) {
+  r.out.problems.push_back({record.row, std::string(loan_id), std::nullopt, "",
+                            std::string(utf8_prefix(record.raw, kRaggedValueBytes)),
+                            std::move(reason), true});
+  ++r.out.rows_not_staged;
+}
+
 void reject_ragged_row(Reading& r, const CsvRecord& record) {
   const std::size_t id_column = r.columns->at(Field::loan_id);
   const std::string_view id =
       id_column < record.fields.size() ? trim_spaces(record.fields[id_column]) : "";
-  r.out.problems.push_back({record.row, std::string(id), std::nullopt, "",
-                            std::string(utf8_prefix(record.raw, kRaggedValueBytes)),
-                            fmt::format("row has {} fields, header has {}", record.fields.size(),
-                                        r.columns->header.size()),
-                            true});
-  ++r.out.ragged_rows;
+  const std::size_t fields = record.fields.size();
+  reject_whole_row(r, record, id,
+                   fmt::format("row has {} field{}, header has {}", fields, fields == 1 ? "" : "s",
+                               r.columns->header.size()));
+}
+
+// `cell` equals the lower-cased header cell `lowered`, ignoring case, surrounding spaces and a
+// byte-order mark (a second file pasted on starts with its own).
+bool same_as_header_cell(std::string_view cell, std::string_view lowered) {
+  cell = trim_spaces(cell);
+  if (cell.size() != lowered.size()) {
+    if (cell.size() <= lowered.size() || cell.substr(0, kByteOrderMark.size()) != kByteOrderMark)
+      return false;
+    cell = trim_spaces(cell.substr(kByteOrderMark.size()));
+    if (cell.size() != lowered.size()) return false;
+  }
+  for (std::size_t i = 0; i < cell.size(); ++i)
+    if (std::tolower(static_cast<unsigned char>(cell[i])) != static_cast<unsigned char>(lowered[i]))
+      return false;
+  return true;
+}
+
+// A record of the header's width whose every cell is the header's (two tapes pasted together).
+// The loan id cell is compared first: for a loan it differs, mostly in its length.
+bool repeats_header(const Reading& r, const CsvRecord& record) {
+  const std::size_t id_column = r.columns->at(Field::loan_id);
+  if (!same_as_header_cell(record.fields[id_column], r.lowered_header[id_column])) return false;
+  for (std::size_t c = 0; c < record.fields.size(); ++c)
+    if (!same_as_header_cell(record.fields[c], r.lowered_header[c])) return false;
+  return true;
 }
 
 // Staging vectors are grown (filled with missing values) ahead of use and cut to size after the
@@ -338,6 +384,8 @@ void resize_staging(Staging& staging, std::size_t rows) {
 void read_row(Reading& r, const CsvRecord& record) {
   ++r.out.rows_read;
   if (record.fields.size() != r.columns->header.size()) return reject_ragged_row(r, record);
+  if (repeats_header(r, record))
+    return reject_whole_row(r, record, "", "repeats the header row (two tapes pasted together?)");
   if (r.staged == r.out.staging.offset.size())
     resize_staging(r.out.staging, std::max<std::size_t>(1024, 2 * r.staged));
   RowContext row{&record, r.staged++};
@@ -374,6 +422,11 @@ RowsRead read_rows(CsvScanner& scanner, const Plan& plan, const ColumnIndex& col
   r.columns = &columns;
   r.out.staging.loans.seller_names = {plan.default_seller};
   r.out.staging.loans.arm_index_names = {""};
+  for (const std::string& cell : columns.header) {
+    std::string lowered = cell;
+    for (char& ch : lowered) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+    r.lowered_header.push_back(std::move(lowered));
+  }
   const std::size_t expected_rows = estimated_rows(scanner.text, columns.header.size());
   resize_staging(r.out.staging, expected_rows);
   size_id_table(r.ids, expected_rows);

@@ -62,37 +62,91 @@ void reject_other_delimiter(const CsvRecord& header, std::string_view file) {
                                  best_count, best->shown, best->name));
 }
 
-// Lines ending in a lone CR (an old Mac export) make the whole file one line: say so.
-void reject_cr_line_ends(const CsvRecord& header, std::string_view file) {
-  const std::string_view raw = header.raw;
-  for (std::size_t cr = raw.find('\r'); cr != std::string_view::npos; cr = raw.find('\r', cr + 1))
-    if (cr + 1 == raw.size() || raw[cr + 1] != '\n')
+// Lines ending in a lone CR (an old Mac export) make the whole file one line: say so, when the
+// bytes [from, to) of the text hold a CR with no LF after it.
+void reject_cr_line_ends(std::string_view text, std::size_t from, std::size_t to,
+                         std::string_view file) {
+  for (std::size_t cr = text.find('\r', from); cr < to; cr = text.find('\r', cr + 1))
+    if (cr + 1 == text.size() || text[cr + 1] != '\n')
       throw tape_error(ErrorKind::wrong_delimiter, file, 0, "", "",
                        "lines end in a lone CR (old Mac line ends), so the file reads as one "
                        "line: save it with LF or CRLF line ends");
 }
 
-// Rate columns: declared unit, else decimal when every value written without '%' is at or
-// below the field's detection ceiling. Values become decimals; detected units go in one note.
+// The header record, or false if the text has none. A lone-CR file larger than the row limit is
+// one record too long to read; it is told from a runaway row by its first line end, a CR with
+// no LF before or after it (looked for only on this error, so the search may cover the file).
+bool read_header(CsvScanner& scanner, CsvRecord& header, std::string_view file) {
+  const std::size_t start = scanner.pos;
+  try {
+    if (!next_record(scanner, header)) return false;
+  } catch (const TapeError& e) {
+    if (e.kind == ErrorKind::record_too_long) {
+      const std::string_view text = scanner.text;
+      const std::size_t cr = text.find('\r', start);
+      if (cr != std::string_view::npos && text.find('\n', start) > cr)
+        reject_cr_line_ends(text, cr, cr + 1, file);
+    }
+    throw;
+  }
+  return true;
+}
+
+// 2000 -> "2,000".
+std::string grouped(std::size_t n) {
+  std::string digits = std::to_string(n), out;
+  for (std::size_t i = 0; i < digits.size(); ++i) {
+    if (i > 0 && (digits.size() - i) % 3 == 0) out += ',';
+    out += digits[i];
+  }
+  return out;
+}
+
+// Rate columns: the declared unit, else the unit most of the column's cells look like (the
+// UnitVotes of its cells written without '%'; a tie reads as percent). Values become decimals,
+// detected units go in one note saying how many cells disagreed, and each cell that disagrees
+// with its column's unit, detected or declared, is marked in Staging::off_unit for the row rules
+// to report on that cell.
+// DESIGN.md section 2 says unanimity; majority chosen so one stray cell cannot flip a column.
 void apply_units(RowsRead& rows, const Plan& plan, std::vector<std::string>& notes) {
   Staging& s = rows.staging;
   std::string detected;
   for (const Step& step : plan.steps) {
     if (step.kind != CellKind::rate) continue;
     const std::size_t k = static_cast<std::size_t>(step.field);
-    Unit unit = plan.unit[k];
-    if (unit == Unit::detect) {
-      if (!rows.any_plain[k]) continue;  // every value had '%', or none was given
-      unit = rows.largest_plain[k] <= decimal_detection_ceiling(step.field) ? Unit::decimal
-                                                                            : Unit::percent;
+    const UnitVotes& votes = rows.votes[k];
+    if (!votes.any_plain()) continue;  // every value had '%', or none was given
+    const bool declared = plan.unit[k] != Unit::detect;
+    const Unit unit = declared                         ? plan.unit[k]
+                      : votes.decimal > votes.percent ? Unit::decimal
+                                                       : Unit::percent;
+    s.unit[k] = unit;
+    const bool decimal = unit == Unit::decimal;
+    const std::size_t disagreeing = decimal ? votes.percent : votes.decimal;
+    if (!declared) {
       detected += fmt::format("{}{} {}", detected.empty() ? "" : ", ", field_name(step.field),
-                              unit == Unit::percent ? "percent" : "decimal");
+                              decimal ? "decimal" : "percent");
+      if (disagreeing > 0)
+        detected += fmt::format(" ({} of {} cells look{} like {})", grouped(disagreeing),
+                                grouped(votes.decimal + votes.percent),
+                                disagreeing == 1 ? "s" : "", decimal ? "percent" : "decimal");
     }
-    if (unit != Unit::percent) continue;
     std::vector<double>& values = s.loans.*step.doubles;
     const std::uint64_t b = bit(step.field);
-    for (std::size_t i = 0; i < values.size(); ++i)
-      if ((s.given[i] & b) && !(s.percent[i] & b)) values[i] /= 100;
+    if (disagreeing == 0) {  // the usual case: convert a percent column, nothing to mark
+      if (!decimal)
+        for (std::size_t i = 0; i < values.size(); ++i)
+          if ((s.given[i] & b) && !(s.percent[i] & b)) values[i] /= 100;
+      continue;
+    }
+    const double ceiling = step.decimal_ceiling;
+    if (s.off_unit.empty()) s.off_unit.assign(values.size(), 0);
+    for (std::size_t i = 0; i < values.size(); ++i) {
+      if (!(s.given[i] & b) || (s.percent[i] & b)) continue;
+      const double value = values[i];
+      if (decimal ? value > ceiling : value > 0 && value <= ceiling) s.off_unit[i] |= b;
+      if (!decimal) values[i] = value / 100;
+    }
   }
   if (!detected.empty())
     notes.push_back("units detected (declare them in the column map to silence this): " + detected);
@@ -144,17 +198,18 @@ void renumber_names(std::vector<Index>& indexes, std::vector<std::string>& names
   names = std::move(kept);
 }
 
-// Counts and sums, then the accepted rows into `out.loans`.
+// Counts and sums, then the accepted rows into `out.loans`. A balance above kMaxLoanBalance is
+// not a loan's, so it is not added to the UPB rejected.
 void finish(RowsRead& rows, TapeRead& out) {
   Staging& s = rows.staging;
   for (std::size_t i = 0; i < s.rejected.size(); ++i)
     if (s.rejected[i] && (s.given[i] & bit(Field::current_balance)) &&
-        s.loans.current_balance[i] > 0)
+        s.loans.current_balance[i] > 0 && s.loans.current_balance[i] <= kMaxLoanBalance)
       out.upb_rejected += s.loans.current_balance[i];
   out.rows_read = rows.rows_read;
-  out.rows_rejected = rows.ragged_rows +
+  out.rows_rejected = rows.rows_not_staged +
                       static_cast<std::size_t>(std::count(s.rejected.begin(), s.rejected.end(), 1));
-  if (out.rows_rejected > rows.ragged_rows)
+  if (out.rows_rejected > rows.rows_not_staged)
     for_each_loan_vector(s.loans,
                          [&](auto& vector, const auto&) { keep_accepted(vector, s.rejected); });
   renumber_names(s.loans.seller, s.loans.seller_names, 0);
@@ -241,12 +296,12 @@ TapeRead read_tape_text(std::string_view text, std::string_view name, const Read
                      "not a text file (NUL bytes near the start: a spreadsheet or UTF-16 file?)");
   CsvScanner scanner = start_csv(text, file, options.max_record_bytes);
   CsvRecord header;
-  if (!next_record(scanner, header))
+  if (!read_header(scanner, header, file))
     throw tape_error(ErrorKind::empty, file, 0, "", "", "the file has no header and no rows");
   if (std::memchr(header.raw.data(), '\0', header.raw.size()))
     throw tape_error(ErrorKind::binary, file, header.row, "", "",
                      "not a text file (NUL bytes in the header)");
-  reject_cr_line_ends(header, file);
+  reject_cr_line_ends(text, header.offset, header.offset + header.raw.size(), file);
   reject_other_delimiter(header, file);
   const ColumnMap* map = options.map ? &*options.map : nullptr;
   const ColumnIndex columns = resolve_columns(header.fields, map, file, header.row);

@@ -86,6 +86,11 @@ int months_to_maturity(Date cutoff, Date maturity);
 // Days since 1970-01-01.
 std::int32_t days_since_epoch(Date date);
 
+// Balances (dollars): above the first a cell is not a residential loan balance (rejected, and
+// left out of TapeRead::upb_rejected); above the second the loan is checked by hand (a warning).
+inline constexpr double kMaxLoanBalance = 100'000'000;
+inline constexpr double kLargeLoanBalance = 5'000'000;
+
 // ---- Header -------------------------------------------------------------------------------------
 inline constexpr std::size_t kNoColumn = static_cast<std::size_t>(-1);
 
@@ -120,6 +125,11 @@ struct Staging {
   std::vector<std::uint64_t> percent;  // bit per Field: the cell had a '%' (already decimal)
   std::vector<std::uint8_t> source;    // RowSource bits
   std::vector<std::uint8_t> rejected;  // 1 once any rule rejects the row
+  // Bit per Field: the cell, written without '%', disagrees with its column's unit (above the
+  // decimal detection ceiling in a decimal column, at or below it in a percent column). Empty
+  // when no cell of the tape disagrees.
+  std::vector<std::uint64_t> off_unit;
+  std::array<Unit, kFieldCount> unit{};  // each rate column's unit as read (declared or detected)
 };
 
 // Where a row's derived values came from.
@@ -196,6 +206,7 @@ struct Step {
   CellKind kind;
   bool required = false;  // an empty cell rejects the row (the remaining term is checked later)
   bool number = false;    // money, rate, whole or score
+  double decimal_ceiling = 0;  // rate: decimal_detection_ceiling(field)
   std::vector<double> LoanArrays::*doubles = nullptr;     // money, rate, score
   std::vector<std::int32_t> LoanArrays::*ints = nullptr;  // whole
 };
@@ -228,19 +239,28 @@ bool has_step(const Plan& plan, Field f);
 std::uint8_t state_of(const Plan& plan, std::string_view code);
 
 // ---- The pass over the text ---------------------------------------------------------------------
+// Rate cells written without '%' vote on their column's unit: a value above 0 and at or below
+// the field's decimal detection ceiling looks like a decimal, one above it like percent. Zero and
+// negative values read the same (or are as wrong) in both units and do not vote.
+struct UnitVotes {
+  std::size_t decimal = 0;
+  std::size_t percent = 0;
+  std::size_t not_voting = 0;  // zero or below
+  bool any_plain() const { return decimal + percent + not_voting > 0; }
+};
+
 struct RowsRead {
   Staging staging;                   // well-formed rows; vectors cut to size
   std::vector<RowProblem> problems;  // rejects found while reading, in row order
   std::size_t rows_read = 0;
-  std::size_t ragged_rows = 0;                      // rejected without being staged
-  std::size_t ages_from_terms = 0;                  // rows whose age cell was empty
-  std::array<double, kFieldCount> largest_plain{};  // largest rate value written without '%'
-  std::array<bool, kFieldCount> any_plain{};        // a rate value written without '%'
+  std::size_t rows_not_staged = 0;        // rejected whole (ragged, a repeated header)
+  std::size_t ages_from_terms = 0;        // rows whose age cell was empty
+  std::array<UnitVotes, kFieldCount> votes{};
 };
 
 // Reads every remaining record of `scanner` (the header already read) into staging: cells parsed,
 // derived terms filled, and the rejects that need no unit (unparsable or missing cells,
-// unknown spellings and states, duplicate loan ids, ragged rows) recorded.
+// unknown spellings and states, duplicate loan ids, ragged rows, the header repeated) recorded.
 RowsRead read_rows(CsvScanner& scanner, const Plan& plan, const ColumnIndex& columns);
 
 // ---- Row rules ----------------------------------------------------------------------------------
@@ -264,7 +284,10 @@ struct RuleOptions {
 
 // Applies the range and consistency rules to staged rows whose values are final (units applied,
 // defaults filled), appending problems in row order and setting `rejected`. Rows already rejected
-// get their remaining rejects but no warnings. Returns the number of rows accepted with warnings.
+// get their remaining rejects but no warnings. A cell gets at most one problem: the problems
+// already in `problems` on entry (those found while reading, in row order) count, and a cell that
+// disagrees with its column's unit gets that said in its one problem (a reject in a decimal
+// column, a warning in a percent column). Returns the number of rows accepted with warnings.
 std::size_t check_rows(Staging& staging, CellReader& cells, const RuleOptions& options,
                        std::vector<RowProblem>& problems);
 

@@ -193,9 +193,11 @@ struct TapeRead {
   std::size_t rows_read = 0;                      // data rows (blank lines are not rows)
   std::size_t rows_rejected = 0;
   std::size_t rows_with_warnings = 0;             // accepted rows with at least one warning
-  std::size_t blank_lines = 0;                    // skipped, reported
+  std::size_t blank_lines = 0;                    // skipped, reported; with rows of only
+                                                  // commas or spaces
   double upb_accepted = 0;                        // dollars
   double upb_rejected = 0;                        // dollars, rejected rows whose balance parsed
+                                                  // and is a loan's (at most $100,000,000)
   std::size_t rows_accepted() const { return loans.size(); }
 };
 

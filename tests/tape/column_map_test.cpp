@@ -80,6 +80,11 @@ TEST(ColumnMap, UnknownUnit) {
   const TapeError e = map_error(R"({"units": {"note_rate": "bps"}})");
   EXPECT_EQ(e.column, "units.note_rate");
   EXPECT_EQ(e.value, "bps");
+  EXPECT_STREQ(e.what(),
+               "seller.json, key units.note_rate: unknown unit 'bps' (percent or decimal)");
+  EXPECT_NE(std::string(map_error(R"({"units": {"dti": 100}})").what())
+                .find("units.dti: unknown unit '100' (percent or decimal)"),
+            std::string::npos);
 }
 
 TEST(ColumnMap, UnitOnAFieldThatIsNotARate) {
@@ -114,9 +119,34 @@ TEST(ColumnMap, BadCutoffDate) {
 
 TEST(ColumnMap, BadDefaults) {
   EXPECT_EQ(map_error(R"({"defaults": {"note_rate": 5}})").column, "defaults.note_rate");
-  EXPECT_EQ(map_error(R"({"defaults": {"servicing_fee": -1}})").column, "defaults.servicing_fee");
-  EXPECT_EQ(map_error(R"({"defaults": {"servicing_fee": "0.25"}})").column,
-            "defaults.servicing_fee");
+  const TapeError negative = map_error(R"({"defaults": {"servicing_fee": -1}})");
+  EXPECT_EQ(negative.column, "defaults.servicing_fee");
+  EXPECT_NE(std::string(negative.what()).find("from 0 to below 25 (0.25 = 0.25%), got -1"),
+            std::string::npos)
+      << negative.what();
+  const TapeError text = map_error(R"({"defaults": {"servicing_fee": "0.25%"}})");
+  EXPECT_EQ(text.column, "defaults.servicing_fee");
+  EXPECT_EQ(text.value, "0.25%");
+  EXPECT_NE(std::string(text.what())
+                .find(R"(defaults.servicing_fee: must be a number, got "0.25%")"),
+            std::string::npos)
+      << text.what();
+}
+
+TEST(ColumnMap, MessagesShowTheValueAtFault) {
+  auto what = [](const std::string& json) { return std::string(map_error(json).what()); };
+  EXPECT_NE(what(R"({"columns": {"loan_id": 5}})").find("must be a string, got 5"),
+            std::string::npos);
+  EXPECT_NE(what(R"({"units": []})").find("must be a JSON object, got []"), std::string::npos);
+  EXPECT_NE(what(R"({"cutoff_date": "12/2026"})").find("'12/2026' is not a date"),
+            std::string::npos);
+  EXPECT_NE(what(R"({"colums": {}})").find("unknown key 'colums'"), std::string::npos);
+  EXPECT_NE(what(R"({"units": {"credit_score": "percent"}})").find("not credit_score"),
+            std::string::npos);
+  // A long value is cut in the message.
+  const std::string long_value = what(R"({"seller": [")" + std::string(200, 'x') + "\"]}");
+  EXPECT_NE(long_value.find("got [\"xxx"), std::string::npos) << long_value;
+  EXPECT_LT(long_value.size(), 150u) << long_value;
 }
 
 TEST(ColumnMap, OneHeaderNameForTwoFields) {

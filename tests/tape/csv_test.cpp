@@ -1,5 +1,5 @@
 // Tests for the CSV scanner (tape/csv.h): quoting, line endings, byte-order mark, row numbers,
-// blank lines, and the two file-level errors it raises.
+// blank lines (and rows of only commas or spaces), and the two file-level errors it raises.
 #include "tape/csv.h"
 
 #include <gtest/gtest.h>
@@ -137,6 +137,16 @@ TEST(Csv, BlankLinesAreSkippedCountedAndNumbered) {
   ASSERT_EQ(s.fields.size(), 3u);
   EXPECT_EQ(s.rows, (std::vector<std::size_t>{1, 3, 6}));
   EXPECT_EQ(s.blank_lines, 4u);
+}
+
+TEST(Csv, RecordsOfOnlyCommasAndSpacesAreBlank) {
+  // A spreadsheet's leftover rows: skipped and counted like blank lines, keeping row numbers.
+  const Scanned s = scan(",,,\nh1,h2\n,\n  \n1,2\n , ,\"\" \r\n\" \",\n3,4\n,,,,,,,,\n");
+  EXPECT_EQ(s.rows, (std::vector<std::size_t>{2, 5, 8}));
+  EXPECT_EQ(s.blank_lines, 6u);
+  // A record with any other text in it is a record.
+  EXPECT_EQ(scan(",x,\n").fields[0], (Fields{"", "x", ""}));
+  EXPECT_EQ(scan("\"\",\",\"\n").fields[0], (Fields{"", ","}));
 }
 
 TEST(Csv, RowsCountRecordsNotLines) {

@@ -1,6 +1,7 @@
 // The malformed-tape corpus (tests/tape/malformed/): one table row per file, saying exactly how
-// the reader must answer it: the TapeError for a file that cannot be a tape, or the one RowProblem
-// for a file with one bad row. Also checks that every file in the folder has a row here.
+// the reader must answer it: the TapeError for a file that cannot be a tape, the one RowProblem
+// for a file with one bad row, or no problem at all for a file whose only oddity the reader
+// skips. Also checks that every file in the folder has a row here.
 #include <gtest/gtest.h>
 
 #include <algorithm>
@@ -46,11 +47,17 @@ struct RowFault {
   std::string reason_part;
 };
 
+// A tape read with no problem at all: its oddity is skipped, and counted.
+struct Skipped {
+  std::size_t blank_lines;
+};
+
 struct Case {
   std::string file;
   std::optional<FileFault> file_fault;
   std::optional<RowFault> row_fault;
   std::size_t max_record_bytes = ReadOptions{}.max_record_bytes;
+  std::optional<Skipped> skipped{};
 };
 
 Case file_case(std::string file, FileFault fault, std::size_t max_record_bytes = 0) {
@@ -61,6 +68,12 @@ Case file_case(std::string file, FileFault fault, std::size_t max_record_bytes =
 
 Case row_case(std::string file, RowFault fault) {
   return Case{std::move(file), std::nullopt, std::move(fault)};
+}
+
+Case skipped_case(std::string file, Skipped skipped) {
+  Case c{std::move(file), std::nullopt, std::nullopt};
+  c.skipped = skipped;
+  return c;
 }
 
 // Row 4 is loan L003 in every corpus tape unless the table says otherwise.
@@ -107,11 +120,15 @@ const std::vector<Case>& corpus_table() {
       file_case("bad-map-json.map.json", {ErrorKind::bad_map, 0, "", "not valid JSON"}),
       file_case("bad-map-unknown-field.map.json",
                 {ErrorKind::bad_map, 0, "columns.current_upb", "unknown field name 'current_upb'"}),
+      // The message shows the value at fault, not only the key.
       file_case("bad-map-unknown-unit.map.json",
-                {ErrorKind::bad_map, 0, "units.note_rate", "unknown unit"}),
-      file_case("bad-map-cutoff.map.json", {ErrorKind::bad_map, 0, "cutoff_date", "not a date"}),
+                {ErrorKind::bad_map, 0, "units.note_rate",
+                 "units.note_rate: unknown unit 'basis_points' (percent or decimal)"}),
+      file_case("bad-map-cutoff.map.json",
+                {ErrorKind::bad_map, 0, "cutoff_date", "'12/2026' is not a date"}),
       file_case("bad-map-fee-as-text.map.json",
-                {ErrorKind::bad_map, 0, "defaults.servicing_fee", "must be a number"}),
+                {ErrorKind::bad_map, 0, "defaults.servicing_fee",
+                 "defaults.servicing_fee: must be a number, got \"0.25%\""}),
 
       // ---- One rejected row --------------------------------------------------------------------
       row_case("negative-balance.csv",
@@ -121,6 +138,14 @@ const std::vector<Case>& corpus_table() {
       // the text between the quotes).
       row_case("unparsable-balance.csv",
                {4, "L003", "current_balance", "145,9OO.00", true, "not a number"}),
+      // A spreadsheet's display of 145,900 in exponent notation: not how a seller writes dollars.
+      row_case("balance-exponent.csv",
+               {4, "L003", "current_balance", "1.459E+05", true, "not a number"}),
+      // Cents typed into a dollar column, or a deal total in a loan's cell.
+      row_case("balance-too-large.csv",
+               {4, "L003", "current_balance", "1459000000.00", true,
+                "current balance 1459000000.00 above $100,000,000: not a residential loan "
+                "balance"}),
       row_case("rate-too-high.csv",
                {4, "L003", "note_rate", "71.25", true, "note rate 71.25% outside 0-25%"}),
       // "7,125" is 7.125% written with a decimal comma. Rates carry no thousands separators, so
@@ -154,7 +179,14 @@ const std::vector<Case>& corpus_table() {
       row_case("dti-over-100.csv", {4, "L003", "dti", "410", true, "DTI 410% outside 0-100%"}),
       // A decimal DTI column (0.36) with one cell written in percent (41): the column stays
       // decimal and that one cell is 4100%, rather than every other loan's DTI becoming 0.36%.
-      row_case("dti-stray-percent.csv", {4, "L003", "dti", "41", true, "DTI 4100% outside 0-100%"}),
+      // DESIGN.md section 2 says unanimity; majority chosen so one stray cell cannot flip a column
+      row_case("dti-stray-percent.csv",
+               {4, "L003", "dti", "41", true, "DTI 4100% outside 0-100% (column read as decimal)"}),
+      // A lifetime cap column in decimals (0.115) with L003's in percent (11.625). No range rule
+      // catches 1162.5% (it is above the note rate), so the unit itself rejects the cell.
+      row_case("arm-lifetime-cap-stray-percent.csv",
+               {4, "L003", "arm_lifetime_cap", "11.625", true,
+                "ARM lifetime cap 1162.5%: looks like percent in a column read as decimal"}),
       // source: USPS Publication 28, two-letter state abbreviations.
       row_case("unknown-state.csv", {4, "L003", "state", "XX", true, "unknown state code"}),
       row_case("state-full-name.csv",
@@ -164,7 +196,20 @@ const std::vector<Case>& corpus_table() {
       // The lifetime cap is the highest note rate the loan allows; 4.5% under a 7.125% rate is
       // not a cap at all (common practice).
       row_case("arm-lifetime-cap-below-rate.csv",
-               {4, "L003", "arm_lifetime_cap", "4.5", true, "lifetime cap"}),
+               {4, "L003", "arm_lifetime_cap", "4.5", true,
+                "ARM lifetime cap 4.5% below the note rate 7.125%"}),
+      // common practice: ARM margins run about 1.5%-5%; 27.5% is a misplaced point.
+      row_case("arm-margin-too-high.csv",
+               {4, "L003", "arm_margin", "27.5", true, "ARM margin 27.5% outside 0-15%"}),
+      // One problem for the cell: not also "ARM without a margin".
+      row_case("arm-margin-not-a-number.csv",
+               {4, "L003", "arm_margin", "2.7S", true, "not a number"}),
+      // The floor is the lowest note rate the loan allows: 8% under a 7.125% rate is no floor.
+      row_case("arm-floor-above-rate.csv",
+               {4, "L003", "arm_floor", "8", true, "ARM floor 8% above the note rate 7.125%"}),
+      row_case("arm-first-reset-beyond-term.csv",
+               {4, "L003", "arm_first_reset", "420", true,
+                "ARM first reset month 420 beyond the original term 360"}),
       row_case("bad-date.csv",
                {4, "L003", "property_value_date", "2024-02-30", true, "not a date"}),
       row_case("duplicate-loan-id.csv",
@@ -173,6 +218,10 @@ const std::vector<Case>& corpus_table() {
       row_case("ragged-row.csv",
                {4, "L003", "", "L003,Harbor Bank,145900.00,160000.00,7.125,0.375,360,330,30,",
                 true, "row has 15 fields, header has 16"}),
+      // Two tapes pasted together: the second header is one reject, not a reject per cell.
+      row_case("header-repeated.csv",
+               {4, "", "", "loan_id,seller,current_balance,original_balance,note_rate,se", true,
+                "repeats the header row (two tapes pasted together?)"}),
 
       // ---- One row accepted with a warning -----------------------------------------------------
       row_case("term-mismatch-warning.csv",
@@ -183,6 +232,18 @@ const std::vector<Case>& corpus_table() {
       row_case("balance-above-original-warning.csv",
                {4, "L003", "current_balance", "161250.00", false,
                 "current balance 161250.00 above original balance 160000.00"}),
+      // One warning for the loan, on its current balance (the original is above $5M too).
+      row_case("balance-jumbo-warning.csv",
+               {4, "L003", "current_balance", "5145900.00", false,
+                "current balance 5145900.00 above $5,000,000 (jumbo: check it)"}),
+      // 0.41 in a percent DTI column is 0.41%: kept, but said.
+      row_case("dti-stray-decimal-warning.csv",
+               {4, "L003", "dti", "0.41", false,
+                "DTI 0.41% looks like a decimal in a percent column"}),
+
+      // ---- Nothing wrong once skipped ----------------------------------------------------------
+      // Rows of only commas or spaces, as a spreadsheet leaves them: blank lines, not rejects.
+      skipped_case("comma-only-rows.csv", {4}),
   };
   return table;
 }
@@ -230,7 +291,6 @@ TEST_P(MalformedCorpus, AnswersAsTheTableSays) {
     return;
   }
 
-  const RowFault& want = *c.row_fault;
   TapeRead t;
   try {
     t = read_corpus_file(c);
@@ -239,6 +299,14 @@ TEST_P(MalformedCorpus, AnswersAsTheTableSays) {
   }
   EXPECT_EQ(t.rows_read, t.rows_accepted() + t.rows_rejected);
   EXPECT_EQ(t.rows_read, kRowsInCorpusTape);
+  EXPECT_EQ(t.blank_lines, c.skipped ? c.skipped->blank_lines : 0u);
+  if (c.skipped) {
+    EXPECT_EQ(t.rows_accepted(), kRowsInCorpusTape);
+    EXPECT_TRUE(t.problems.empty()) << t.problems.front().reason;
+    return;
+  }
+
+  const RowFault& want = *c.row_fault;
   EXPECT_EQ(t.rows_rejected, want.reject ? 1u : 0u);
   EXPECT_EQ(t.rows_with_warnings, want.reject ? 0u : 1u);
   // One fault per file: exactly one problem, so the file tests one rule and nothing else.
@@ -281,7 +349,10 @@ TEST(MalformedCorpusFolder, EveryFileHasATableRowAndEveryRowAFile) {
   std::set<std::string> in_table;
   for (const Case& c : corpus_table()) {
     EXPECT_TRUE(in_table.insert(c.file).second) << c.file << " is in the table twice";
-    EXPECT_NE(c.file_fault.has_value(), c.row_fault.has_value()) << c.file;
+    EXPECT_EQ(int{c.file_fault.has_value()} + int{c.row_fault.has_value()} +
+                  int{c.skipped.has_value()},
+              1)
+        << c.file;
   }
   std::set<std::string> in_folder;
   for (const fs::directory_entry& entry : fs::directory_iterator(kCorpus)) {
@@ -320,6 +391,25 @@ TEST(MalformedCorpusGenerated, RunawayRowAtTheDefaultLimit) {
     EXPECT_EQ(e.kind, ErrorKind::record_too_long) << e.what();
     EXPECT_EQ(e.row, 3u);
     EXPECT_NE(std::string(e.what()).find("runaway-2mib.csv row 3"), std::string::npos) << e.what();
+  }
+}
+
+// cr-line-endings.csv grown past the default row limit (1 MiB): a lone-CR file that large is one
+// record too long to read, and must still be told apart from a runaway row.
+TEST(MalformedCorpusGenerated, LoneCrLineEndsPastTheDefaultLimit) {
+  std::ifstream in(kCorpus / "cr-line-endings.csv", std::ios::binary);
+  const std::string small((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  const std::size_t header_end = small.find('\r') + 1;
+  const std::string header = small.substr(0, header_end);
+  const std::string rows = small.substr(header_end);
+  std::string big = header;
+  while (big.size() <= ReadOptions{}.max_record_bytes) big += rows;
+  try {
+    read_tape_text(big, "lone-cr-large.csv");
+    ADD_FAILURE() << "a lone-CR file was read";
+  } catch (const TapeError& e) {
+    EXPECT_EQ(e.kind, ErrorKind::wrong_delimiter) << e.what();
+    EXPECT_NE(std::string(e.what()).find("lone CR"), std::string::npos) << e.what();
   }
 }
 

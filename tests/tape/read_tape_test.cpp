@@ -2,6 +2,7 @@
 // unusable-file kinds, and the invariant rows_read == accepted + rejected on random junk tapes.
 #include <gtest/gtest.h>
 
+#include <cctype>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -335,6 +336,27 @@ TEST(ReadTape, ShortRaggedRow) {
   const TapeRead t = read(make_tape({{}}) + "L9,100\n");
   EXPECT_EQ(problem_at(t, 3, "").reason, "row has 2 fields, header has 31");
   EXPECT_EQ(problem_at(t, 3, "").value, "L9,100");
+  EXPECT_EQ(problem_at(read(make_tape({{}}) + "L9\n"), 3, "").reason,
+            "row has 1 field, header has 31");
+}
+
+TEST(ReadTape, RowsOfOnlyCommasOrSpacesAreBlankLines) {
+  // Spreadsheet leftovers: a full row of commas, a short one, spaces, quoted empty cells; before
+  // the header too. Blank lines, not rejects, and they keep rows as line numbers.
+  std::string text = make_tape({{}, {}, {{"credit_score", "910"}}});
+  text.insert(0, ",,,\n");
+  const std::size_t second = text.find("L2,");
+  text.insert(second, std::string(30, ',') + "\n  \n");
+  const std::size_t third = text.find("L3,");
+  text.insert(third, ",  ,\"\",\" \"\n");
+  text += ",,\n";
+  const TapeRead t = read(text);
+  EXPECT_EQ(t.blank_lines, 5u);
+  EXPECT_EQ(t.rows_read, 3u);
+  EXPECT_EQ(t.loans.row, (std::vector<std::uint32_t>{3, 6}));
+  expect_reject(t, 8, "credit_score", "910", "outside 300-850");
+  // With nothing else after the header there are no data rows.
+  EXPECT_EQ(read_error(make_tape({}) + ",,,\n   \n").kind, ErrorKind::no_data_rows);
 }
 
 // ---- Rejects ------------------------------------------------------------------------------------
@@ -399,6 +421,18 @@ TEST(Rejects, CurrentBalanceNotAboveZero) {
   EXPECT_EQ(t.upb_rejected, 0);
   expect_reject(read_second_row({{"current_balance", "-5"}}), 3, "current_balance", "-5",
                 "not above 0");
+}
+
+TEST(Rejects, BalanceAboveOneHundredMillionIsNotALoan) {
+  const TapeRead t = read_second_row({{"current_balance", "250000000"}});
+  expect_reject(t, 3, "current_balance", "250000000",
+                "current balance 250000000.00 above $100,000,000: not a residential loan balance");
+  EXPECT_EQ(t.upb_rejected, 0);  // not a loan's balance, so not UPB rejected
+  expect_reject(read_second_row({{"original_balance", "$150,000,000"}}), 3, "original_balance",
+                "$150,000,000", "original balance 150000000.00 above $100,000,000");
+  // At the bound: a loan, large enough to warn about.
+  const TapeRead at = read_second_row({{"current_balance", "100000000"}});
+  EXPECT_EQ(at.rows_rejected, 0u);
 }
 
 TEST(Rejects, OriginalBalanceNotAboveZero) {
@@ -477,6 +511,30 @@ TEST(Rejects, DuplicateLoanIdAfterTrimming) {
   expect_reject(t, 3, "loan_id", " L1 ", "duplicate loan id, first at row 2");
 }
 
+TEST(Rejects, HeaderRepeatedMidFileIsOneReject) {
+  // Two tapes pasted together; the second header in another case, spaced, after its own
+  // byte-order mark.
+  const std::string first = make_tape({{}, {}});
+  std::string second = make_tape({{{"loan_id", "M1"}}});
+  for (std::size_t i = 0; i < second.find('\n'); ++i)
+    second[i] = static_cast<char>(std::toupper(static_cast<unsigned char>(second[i])));
+  second.replace(second.find(","), 1, " , ");
+  const TapeRead t = read(first + "\xEF\xBB\xBF" + second);
+  ASSERT_EQ(t.problems.size(), 1u);
+  const RowProblem p = problem_at(t, 4, "");
+  EXPECT_TRUE(p.reject);
+  EXPECT_EQ(p.reason, "repeats the header row (two tapes pasted together?)");
+  EXPECT_EQ(p.loan_id, "");
+  EXPECT_FALSE(p.field);
+  EXPECT_EQ(p.value.size(), 60u);
+  EXPECT_EQ(t.rows_read, 4u);
+  EXPECT_EQ(t.rows_rejected, 1u);
+  EXPECT_EQ(t.loans.loan_id, (std::vector<std::string>{"L1", "L2", "M1"}));
+  // A row that only shares its loan id cell with the header is a loan (a bad one).
+  const TapeRead id_only = read(make_tape({{}, {{"loan_id", "loan_id"}}}));
+  EXPECT_EQ(id_only.rows_rejected, 0u);
+}
+
 TEST(Rejects, UnknownCategorySpelling) {
   const TapeRead t = read_second_row({{"occupancy", "castle"}});
   expect_reject(t, 3, "occupancy", "castle", "owner, second_home, investor");
@@ -517,6 +575,78 @@ TEST(Rejects, ArmWithItsTermsIsAccepted) {
   EXPECT_DOUBLE_EQ(t.loans.arm_margin[1], 0.0275);
   EXPECT_DOUBLE_EQ(t.loans.arm_lifetime_cap[1], 0.115);
   EXPECT_EQ(t.loans.arm_first_reset[1], 60);
+}
+
+// An ARM with all its terms, in percent: 6.5% note rate, 2.75% margin and floor, 11.5% cap.
+Cells arm_row(std::initializer_list<std::pair<const std::string, std::string>> changes) {
+  Cells row = {{"amortization_type", "arm"}, {"arm_index", "SOFR30A"},
+               {"arm_margin", "2.75"},       {"arm_first_reset", "60"},
+               {"arm_reset_period", "6"},    {"arm_periodic_cap", "1"},
+               {"arm_lifetime_cap", "11.5"}, {"arm_floor", "2.75"}};
+  for (const auto& [column, value] : changes) row[column] = value;
+  return row;
+}
+
+TEST(Rejects, ArmTermsOutOfRange) {
+  struct Case {
+    std::string column, value, reason;
+  };
+  const std::vector<Case> cases = {
+      {"arm_margin", "16", "ARM margin 16% outside 0-15%"},
+      {"arm_margin", "-1", "ARM margin -1% outside 0-15%"},
+      {"arm_periodic_cap", "0", "ARM periodic cap 0% not above 0"},
+      {"arm_periodic_cap", "16", "ARM periodic cap 16% above 15%"},
+      {"arm_floor", "-0.5", "ARM floor -0.5% below 0"},
+      {"arm_floor", "12", "ARM floor 12% above the lifetime cap 11.5%"},
+      {"arm_floor", "7", "ARM floor 7% above the note rate 6.5%"},
+      {"arm_lifetime_cap", "6", "ARM lifetime cap 6% below the note rate 6.5%"},
+      {"arm_first_reset", "0", "ARM first reset month 0 not above 0"},
+      {"arm_first_reset", "-12", "ARM first reset month -12 not above 0"},
+      {"arm_first_reset", "361", "ARM first reset month 361 beyond the original term 360"},
+      {"arm_reset_period", "0", "ARM reset period 0 months not above 0"},
+      {"arm_reset_period", "121", "ARM reset period 121 months above 120"},
+  };
+  for (const Case& c : cases) {
+    SCOPED_TRACE(c.column + " " + c.value);
+    const TapeRead t = read_second_row(arm_row({{c.column, c.value}}));
+    ASSERT_EQ(t.problems.size(), 1u) << t.problems.front().reason;
+    expect_reject(t, 3, c.column, c.value, c.reason);
+  }
+  // At the bounds: accepted.
+  const TapeRead edges = read_second_row(arm_row({{"arm_margin", "15"},
+                                                  {"arm_periodic_cap", "15"},
+                                                  {"arm_floor", "6.5"},
+                                                  {"arm_lifetime_cap", "6.5"},
+                                                  {"arm_first_reset", "360"},
+                                                  {"arm_reset_period", "120"}}));
+  EXPECT_EQ(edges.rows_rejected, 0u) << edges.problems.front().reason;
+}
+
+TEST(Rejects, ArmRatesAreNotComparedWithABadNoteRate) {
+  // The note rate is the fault; the cap and floor are not blamed for it.
+  const TapeRead t = read_second_row(arm_row({{"note_rate", "31"}}));
+  ASSERT_EQ(t.problems.size(), 1u);
+  expect_reject(t, 3, "note_rate", "31", "outside 0-25%");
+}
+
+TEST(Rejects, OneProblemPerArmCell) {
+  // An unparsable margin is "not a number", not also "ARM without a margin".
+  const TapeRead t = read_second_row(arm_row({{"arm_margin", "2.7S"}, {"arm_reset_period", "x"}}));
+  EXPECT_EQ(t.problems.size(), 2u);
+  expect_reject(t, 3, "arm_margin", "2.7S", "not a number");
+  EXPECT_EQ(problem_at(t, 3, "arm_reset_period").reason, "not a number");
+}
+
+TEST(Rejects, FixedRateLoanArmColumnsAreNotChecked) {
+  // Sellers fill a fixed-rate loan's ARM columns with zeros.
+  const TapeRead t = read_second_row({{"arm_margin", "0"},
+                                      {"arm_first_reset", "0"},
+                                      {"arm_reset_period", "0"},
+                                      {"arm_periodic_cap", "0"},
+                                      {"arm_lifetime_cap", "0"},
+                                      {"arm_floor", "0"}});
+  EXPECT_EQ(t.rows_rejected, 0u);
+  EXPECT_TRUE(t.problems.empty());
 }
 
 TEST(Rejects, ArmMissingOnlyTheResetPeriod) {
@@ -582,9 +712,31 @@ TEST(Warnings, CurrentBalanceAboveOriginal) {
                  "above original balance");
 }
 
-TEST(Warnings, NoteRateBelowHalfAPercent) {
-  expect_warning(read_second_row({{"note_rate", "0.4"}}), 3, "note_rate", "0.4",
-                 "note rate 0.4% below 0.5%");
+TEST(Warnings, DecimalInAPercentColumn) {
+  // At or below the field's decimal detection ceiling, in a column read as percent.
+  expect_warning(read_second_row({{"note_rate", "0.9"}, {"servicing_fee", "0.125"}}), 3,
+                 "note_rate", "0.9", "note rate 0.9% looks like a decimal in a percent column");
+  expect_warning(read_second_row({{"dti", "0.36"}}), 3, "dti", "0.36",
+                 "DTI 0.36% looks like a decimal in a percent column");
+  expect_warning(read_second_row({{"servicing_fee", "0.0025"}}), 3, "servicing_fee", "0.0025",
+                 "servicing fee 0.0025% looks like a decimal in a percent column");
+  // Written with '%', the cell says its unit; zero reads the same in both units.
+  EXPECT_TRUE(
+      read_second_row({{"note_rate", "0.9%"}, {"servicing_fee", "0.125"}}).problems.empty());
+  EXPECT_TRUE(read_second_row({{"servicing_fee", "0"}}).problems.empty());
+}
+
+TEST(Warnings, BalanceAboveFiveMillion) {
+  // One warning for the loan: on the current balance when it is above, else the original.
+  const TapeRead both =
+      read_second_row({{"current_balance", "6000000"}, {"original_balance", "6500000"}});
+  EXPECT_EQ(both.problems.size(), 1u);
+  expect_warning(both, 3, "current_balance", "6000000",
+                 "current balance 6000000.00 above $5,000,000 (jumbo: check it)");
+  expect_warning(read_second_row({{"original_balance", "5500000"}}), 3, "original_balance",
+                 "5500000", "original balance 5500000.00 above $5,000,000");
+  EXPECT_TRUE(read_second_row({{"current_balance", "5000000"}, {"original_balance", "5000000"}})
+                  .problems.empty());
 }
 
 TEST(Warnings, ServicingFeeAbove2Percent) {
@@ -661,13 +813,92 @@ TEST(Units, DeclaredDecimalColumn) {
   EXPECT_DOUBLE_EQ(t.loans.dti[0], 0.43);
 }
 
-TEST(Units, OneStrayPercentValueMakesTheColumnPercent) {
-  // Detection looks at the whole column: one 6.5 among decimals turns it percent, and the
-  // decimals then warn as note rates below 0.5%.
+TEST(Units, MostCellsDecideTheColumn) {
+  // DESIGN.md section 2 says unanimity; majority chosen so one stray cell cannot flip a column
+  // A decimal DTI column with one cell in percent: the column stays decimal, the other loans'
+  // DTIs stay 36%, and the stray cell alone is rejected, its reason naming the unit.
+  const TapeRead t =
+      read(make_tape({{{"dti", "0.36"}}, {{"dti", "0.41"}}, {{"dti", "41"}}, {{"dti", "0.28"}}}));
+  EXPECT_EQ(t.loans.dti, (std::vector<double>{0.36, 0.41, 0.28}));
+  expect_reject(t, 4, "dti", "41", "DTI 4100% outside 0-100% (column read as decimal)");
+  EXPECT_EQ(t.problems.size(), 1u);
+  EXPECT_NE(t.notes.back().find("dti decimal (1 of 4 cells looks like percent)"),
+            std::string::npos)
+      << t.notes.back();
+  // The other way: a percent column with one decimal keeps its percent, and warns.
+  const TapeRead p = read(make_tape({{}, {{"dti", "0.41"}}, {}}));
+  EXPECT_DOUBLE_EQ(p.loans.dti[0], 0.36);
+  EXPECT_DOUBLE_EQ(p.loans.dti[1], 0.0041);
+  expect_warning(p, 3, "dti", "0.41", "DTI 0.41% looks like a decimal in a percent column");
+  EXPECT_NE(p.notes.back().find("dti percent (1 of 3 cells looks like decimal)"),
+            std::string::npos)
+      << p.notes.back();
+}
+
+TEST(Units, ATieReadsAsPercent) {
+  // One 0.065 and one 6.5: percent, and the 0.065 (0.065%) is said.
   const TapeRead t =
       read(make_tape({{{"note_rate", "0.065"}, {"servicing_fee", "0"}}, {{"note_rate", "6.5"}}}));
   EXPECT_DOUBLE_EQ(t.loans.note_rate[0], 0.00065);
-  EXPECT_EQ(problem_at(t, 2, "note_rate").reject, false);
+  expect_warning(t, 2, "note_rate", "0.065", "looks like a decimal in a percent column");
+}
+
+TEST(Units, ServicingFeeDecimalBesidePercentIsNotSilent) {
+  const TapeRead t = read(
+      "loan_id,current_balance,note_rate,servicing_fee,original_term,remaining_term\n"
+      "L1,200000,0.065,0.0025,360,348\n"
+      "L2,200000,0.065,0.25,360,348\n");
+  ASSERT_EQ(t.rows_accepted(), 2u);
+  EXPECT_DOUBLE_EQ(t.loans.note_rate[0], 0.065);
+  EXPECT_DOUBLE_EQ(t.loans.servicing_fee[1], 0.0025);
+  expect_warning(t, 2, "servicing_fee", "0.0025",
+                 "servicing fee 0.0025% looks like a decimal in a percent column");
+  EXPECT_NE(t.notes.back().find("servicing_fee percent (1 of 2 cells looks like decimal)"),
+            std::string::npos)
+      << t.notes.back();
+}
+
+TEST(Units, NoteCountsCellsWithThousandsSeparators) {
+  std::vector<Cells> rows(2000, Cells{{"dti", "0.36"}});
+  rows[1500]["dti"] = "41";
+  rows[1700]["dti"] = "38";
+  const TapeRead t = read(make_tape(rows));
+  EXPECT_EQ(t.rows_rejected, 2u);
+  EXPECT_NE(t.notes.back().find("dti decimal (2 of 2,000 cells look like percent)"),
+            std::string::npos)
+      << t.notes.back();
+}
+
+TEST(Units, StrayPercentNoRangeRuleCatchesIsStillRejected) {
+  // 11.625 among decimal lifetime caps reads 1162.5%: above the note rate, so no ARM rule
+  // rejects it; the unit does.
+  const TapeRead t = read(make_tape({arm_row({{"arm_lifetime_cap", "0.115"}}),
+                                     arm_row({{"arm_lifetime_cap", "11.625"}}),
+                                     arm_row({{"arm_lifetime_cap", "0.1125"}})}));
+  ASSERT_EQ(t.problems.size(), 1u);
+  expect_reject(t, 3, "arm_lifetime_cap", "11.625",
+                "ARM lifetime cap 1162.5%: looks like percent in a column read as decimal");
+  EXPECT_DOUBLE_EQ(t.loans.arm_lifetime_cap[0], 0.115);
+}
+
+TEST(Units, DeclaredUnitsStillReportCellsThatDisagree) {
+  ReadOptions options;
+  options.map = parse_column_map(R"({"units": {"dti": "decimal", "note_rate": "percent"}})",
+                                 "m.json");
+  const TapeRead t = read(make_tape({{{"dti", "0.36"}}, {{"dti", "41"}}}), options);
+  expect_reject(t, 3, "dti", "41", "DTI 4100% outside 0-100% (column read as decimal)");
+  const TapeRead p = read(make_tape({{{"dti", "0.36"}}, {{"dti", "0.4"}, {"note_rate", "0.9"},
+                                                         {"servicing_fee", "0.125"}}}),
+                          options);
+  expect_warning(p, 3, "note_rate", "0.9", "note rate 0.9% looks like a decimal in a percent");
+}
+
+TEST(Units, ZeroDoesNotVote) {
+  // Floors of 0 read the same in either unit: the one 2.75 decides percent, and 0 is not said.
+  const TapeRead t = read(make_tape({arm_row({{"arm_floor", "0"}}), arm_row({{"arm_floor", "0"}}),
+                                     arm_row({{"arm_floor", "2.75"}})}));
+  EXPECT_TRUE(t.problems.empty()) << t.problems.front().reason;
+  EXPECT_DOUBLE_EQ(t.loans.arm_floor[2], 0.0275);
 }
 
 // ---- Numbers ------------------------------------------------------------------------------------
@@ -675,10 +906,19 @@ TEST(Units, OneStrayPercentValueMakesTheColumnPercent) {
 TEST(Numbers, DollarSignsThousandsAndSpaces) {
   const TapeRead t = read(make_tape({{{"current_balance", " $200,000.00 "},
                                       {"original_balance", "$1,250,000"},
-                                      {"property_value", "1e6"}}}));
+                                      {"property_value", "1000000"}}}));
   ASSERT_EQ(t.rows_accepted(), 1u);
   EXPECT_DOUBLE_EQ(t.loans.current_balance[0], 200000);
   EXPECT_DOUBLE_EQ(t.loans.property_value[0], 1e6);
+}
+
+TEST(Numbers, ExponentInADollarAmountIsNotANumber) {
+  // A spreadsheet shows 145,900 as 1.459E+05; the tape should carry the amount.
+  for (const char* column : {"current_balance", "original_balance", "property_value"}) {
+    SCOPED_TRACE(column);
+    for (const char* cell : {"1e5", "1.459E+05", "$2E5"})
+      expect_reject(read_second_row({{column, cell}}), 3, column, cell, "not a number");
+  }
 }
 
 TEST(Numbers, ParseNumberForms) {
@@ -862,19 +1102,21 @@ TEST(ServicingFee, EmptyCellWithoutDefaultRejects) {
 
 TEST(ServicingFee, DefaultNotBelowNoteRatePointsAtTheNoteRate) {
   ReadOptions options;
-  options.default_servicing_fee = 0.01;
-  const TapeRead t = read(
-      make_tape({{}, {{"note_rate", "0.8"}}}, without(kFullHeader, {"servicing_fee"})), options);
-  expect_reject(t, 3, "note_rate", "0.8",
-                "servicing fee 1% (pool default) not below note rate 0.8%");
+  options.default_servicing_fee = 0.07;
+  const TapeRead t =
+      read(make_tape({{{"note_rate", "7.5"}}, {}}, without(kFullHeader, {"servicing_fee"})),
+           options);
+  expect_reject(t, 3, "note_rate", "6.5",
+                "servicing fee 7% (pool default) not below note rate 6.5%");
 }
 
 TEST(ServicingFee, FeeAboveATinyNoteRateBlamesTheNoteRate) {
   // 0.07125 in a percent column is 0.07125%: the fee beside it is not the fault.
   const TapeRead t = read_second_row({{"note_rate", "0.07125"}});
-  expect_reject(t, 3, "note_rate", "0.07125", "a decimal in a percent column?");
+  expect_reject(t, 3, "note_rate", "0.07125",
+                "note rate 0.07125% looks like a decimal in a percent column (the servicing fee "
+                "0.25% is not below it)");
   EXPECT_EQ(t.problems.size(), 1u);
-  EXPECT_NE(t.problems[0].reason.find("servicing fee 0.25%"), std::string::npos);
 }
 
 // ---- Sellers ------------------------------------------------------------------------------------
@@ -1026,6 +1268,22 @@ TEST(Unusable, LoneCrLineEnds) {
   const TapeError e = read_error(text);
   EXPECT_EQ(e.kind, ErrorKind::wrong_delimiter);
   EXPECT_NE(std::string(e.what()).find("lone CR"), std::string::npos) << e.what();
+}
+
+TEST(Unusable, LoneCrLineEndsPastTheRowLimit) {
+  // The whole file is one record longer than the limit: still the lone-CR message.
+  std::string text = make_tape({{}, {}, {}});
+  std::replace(text.begin(), text.end(), '\n', '\r');
+  ReadOptions options;
+  options.max_record_bytes = 300;
+  const TapeError e = read_error(text, options);
+  EXPECT_EQ(e.kind, ErrorKind::wrong_delimiter);
+  EXPECT_NE(std::string(e.what()).find("lone CR"), std::string::npos) << e.what();
+  // A header too long with CRLF line ends is too long, not lone CR.
+  std::string crlf;
+  for (char ch : make_tape({{}})) crlf += ch == '\n' ? std::string("\r\n") : std::string(1, ch);
+  options.max_record_bytes = 100;
+  EXPECT_EQ(read_error(crlf, options).kind, ErrorKind::record_too_long);
 }
 
 TEST(Unusable, RecordTooLong) {
