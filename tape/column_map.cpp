@@ -176,6 +176,10 @@ ColumnMap parse_column_map(std::string_view json_text, std::string_view source_n
       if (!map.cutoff)
         bad_map(map.source, key, text,
                 fmt::format("'{}' is not a date (YYYY-MM-DD or M/D/YYYY)", text));
+      if (map.cutoff->day() != std::chrono::day{1})
+        bad_map(map.source, key, text,
+                fmt::format("'{}' is not the first day of a month (balances are as of a "
+                            "month's start)", text));
     } else if (key == "columns") {
       read_columns(object_at(doc, key, map.source), map);
     } else if (key == "units") {

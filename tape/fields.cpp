@@ -80,7 +80,6 @@ constexpr Spelling kPropertyType[] = {
     {"pud", u8(PropertyType::pud)}, {"plannedunitdevelopment", u8(PropertyType::pud)},
     {"twotofour", u8(PropertyType::two_to_four)}, {"24unit", u8(PropertyType::two_to_four)},
     {"2to4", u8(PropertyType::two_to_four)}, {"24family", u8(PropertyType::two_to_four)},
-    {"multifamily", u8(PropertyType::two_to_four)},
     {"manufactured", u8(PropertyType::manufactured)}, {"mh", u8(PropertyType::manufactured)},
     {"manufacturedhousing", u8(PropertyType::manufactured)},
     {"mobilehome", u8(PropertyType::manufactured)},
@@ -326,6 +325,8 @@ double decimal_detection_ceiling(Field f) {
     case Field::arm_periodic_cap: return 0.15;   // periodic caps 1%-2%
     case Field::arm_lifetime_cap: return 0.30;   // caps 5%-6% over the start rate, or 10%-13%
     case Field::arm_floor: return 0.30;
+    case Field::original_ltv:                    // a 105% CLTV is 1.05 as a decimal, and no loan
+    case Field::combined_ltv: return 3.0;        // has an LTV of 3%: up to 3 (300%) is decimal
     default: return 1.0;                         // DESIGN.md section 2: values <= 1 -> decimal
   }
 }

@@ -12,7 +12,7 @@ namespace {
 // Reject bounds (rates and ratios as decimals): values outside them are mistakes, not loans.
 constexpr double kMaxNoteRate = 0.25;               // 0-25%
 constexpr double kMinLtv = 0.01, kMaxLtv = 3.00;    // 1-300%, original and combined
-constexpr double kMinScore = 300, kMaxScore = 850;  // the FICO score range
+constexpr double kMinScore = 300, kMaxScore = 850;  // credit score range (common practice)
 constexpr double kMaxDti = 1.00;                    // 0-100%
 // ARM terms (common practice: margins run 1.5%-5%, periodic caps 1%-2%, resets every 6 or 12
 // months); the bounds are wide, to catch mistakes rather than judge the loan.

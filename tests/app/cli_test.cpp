@@ -245,9 +245,9 @@ TEST_F(Cli, RunawayRowOfTwoMebibytesExitsFour) {
   {
     std::ofstream out(tape, std::ios::binary);
     out << read_file(kSource / kCorpus / "header-only.csv");
-    out << "L001,Harbor Bank,200000.00,250000.00,6.5,0.25,360,348,12,740,80,80,36,owner,"
+    out << "L001,Quillmoor Lending,200000.00,250000.00,6.5,0.25,360,348,12,740,80,80,36,owner,"
            "2025-11-15,CA\n";
-    out << "L002,Harbor Bank," << std::string(std::size_t{2} << 20, 'x') << "\n";
+    out << "L002,Quillmoor Lending," << std::string(std::size_t{2} << 20, 'x') << "\n";
   }
   const Outcome r = poolbid({"check", tape.string()});
   expect_one_error_line(r, tape.string(), kUnusableTape);

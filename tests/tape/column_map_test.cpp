@@ -28,7 +28,7 @@ TapeError map_error(const std::string& json) {
 
 TEST(ColumnMap, ParsesEveryKey) {
   const ColumnMap map = parse_column_map(R"({
-    "seller": "Harbor Bank",
+    "seller": "Quillmoor Lending",
     "cutoff_date": "2026-12-01",
     "columns": {"loan_id": "LOAN_NO", "current_balance": ["CURR_UPB", "UPB"]},
     "units": {"note_rate": "decimal", "original_ltv": "percent"},
@@ -37,7 +37,7 @@ TEST(ColumnMap, ParsesEveryKey) {
   })",
                                          "harbor.json");
   EXPECT_EQ(map.source, "harbor.json");
-  EXPECT_EQ(map.seller, "Harbor Bank");
+  EXPECT_EQ(map.seller, "Quillmoor Lending");
   EXPECT_EQ(map.cutoff, Date(year{2026}, month{12}, day{1}));
   EXPECT_EQ(map.columns.at(Field::loan_id), (std::vector<std::string>{"LOAN_NO"}));
   EXPECT_EQ(map.columns.at(Field::current_balance), (std::vector<std::string>{"CURR_UPB", "UPB"}));
@@ -117,6 +117,12 @@ TEST(ColumnMap, BadCutoffDate) {
   EXPECT_EQ(e.value, "2026-13-01");
 }
 
+TEST(ColumnMap, CutoffDateMustBeTheFirstOfAMonth) {
+  const TapeError e = map_error(R"({"cutoff_date": "2026-12-15"})");
+  EXPECT_EQ(e.kind, ErrorKind::bad_map);
+  EXPECT_EQ(e.value, "2026-12-15");
+}
+
 TEST(ColumnMap, BadDefaults) {
   EXPECT_EQ(map_error(R"({"defaults": {"note_rate": 5}})").column, "defaults.note_rate");
   const TapeError negative = map_error(R"({"defaults": {"servicing_fee": -1}})");
@@ -158,8 +164,8 @@ TEST(ColumnMap, OneHeaderNameForTwoFields) {
 TEST(ColumnMap, LoadReadsAFileAndNamesIt) {
   const std::string path =
       (std::filesystem::temp_directory_path() / "poolbid_column_map_test.json").string();
-  std::ofstream(path) << R"({"seller": "Harbor"})";
-  EXPECT_EQ(load_column_map(path).seller, "Harbor");
+  std::ofstream(path) << R"({"seller": "Quillmoor"})";
+  EXPECT_EQ(load_column_map(path).seller, "Quillmoor");
   EXPECT_EQ(load_column_map(path).source, path);
   std::ofstream(path) << R"({"seller": 1})";
   try {

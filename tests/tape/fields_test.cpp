@@ -133,7 +133,9 @@ TEST(RateFields, WhichFieldsAndTheirCeilings) {
   for (Field f : {Field::current_balance, Field::credit_score, Field::original_term})
     EXPECT_FALSE(detail::is_rate_field(f)) << field_name(f);
   EXPECT_EQ(detail::decimal_detection_ceiling(Field::note_rate), 1.0);
-  EXPECT_EQ(detail::decimal_detection_ceiling(Field::original_ltv), 1.0);
+  EXPECT_EQ(detail::decimal_detection_ceiling(Field::dti), 1.0);
+  // A 105% CLTV written as a decimal is 1.05; LTVs run to 300% (3.0) and none is 3%.
+  EXPECT_EQ(detail::decimal_detection_ceiling(Field::combined_ltv), 3.0);
   // A 0.25% fee written in percent is 0.25: above the fee ceiling, so read as percent.
   EXPECT_LT(detail::decimal_detection_ceiling(Field::servicing_fee), 0.25);
 }

@@ -216,7 +216,7 @@ const std::vector<Case>& corpus_table() {
                {5, "L002", "loan_id", "L002", true, "duplicate loan id, first at row 3"}),
       // A whole-row problem shows the row's first 60 bytes as its value.
       row_case("ragged-row.csv",
-               {4, "L003", "", "L003,Harbor Bank,145900.00,160000.00,7.125,0.375,360,330,30,",
+               {4, "L003", "", "L003,Quillmoor Lending,145900.00,160000.00,7.125,0.375,360,3",
                 true, "row has 15 fields, header has 16"}),
       // Two tapes pasted together: the second header is one reject, not a reject per cell.
       row_case("header-repeated.csv",
@@ -382,8 +382,8 @@ TEST(MalformedCorpusGenerated, RunawayRowAtTheDefaultLimit) {
       "remaining_term,loan_age,credit_score,original_ltv,combined_ltv,dti,occupancy,"
       "property_value_date,state\n";
   const std::string good =
-      "L001,Harbor Bank,200000.00,250000.00,6.5,0.25,360,348,12,740,80,80,36,owner,2025-11-15,CA\n";
-  const std::string runaway = "L002,Harbor Bank," + std::string(std::size_t{2} << 20, 'x') + "\n";
+      "L001,Quillmoor Lending,200000.00,250000.00,6.5,0.25,360,348,12,740,80,80,36,owner,2025-11-15,CA\n";
+  const std::string runaway = "L002,Quillmoor Lending," + std::string(std::size_t{2} << 20, 'x') + "\n";
   try {
     read_tape_text(header + good + runaway + good, "runaway-2mib.csv");
     ADD_FAILURE() << "a 2 MiB row was read";

@@ -56,7 +56,7 @@ const std::vector<std::string> kFullHeader = {"loan_id",
 // A clean fixed-rate loan, percent units; `n` numbers its loan id.
 Cells good_row(int n) {
   return {{"loan_id", "L" + std::to_string(n)},
-          {"seller", "Harbor Bank"},
+          {"seller", "Quillmoor Lending"},
           {"current_balance", "200000"},
           {"original_balance", "250000"},
           {"note_rate", "6.5"},
@@ -192,7 +192,7 @@ TEST(ReadTape, CleanRowIsReadIntoDecimalsAndMonths) {
   const LoanArrays& l = t.loans;
   EXPECT_EQ(l.loan_id[1], "L2");
   EXPECT_EQ(l.row[1], 3u);
-  EXPECT_EQ(l.seller_names[l.seller[1]], "Harbor Bank");
+  EXPECT_EQ(l.seller_names[l.seller[1]], "Quillmoor Lending");
   EXPECT_DOUBLE_EQ(l.current_balance[0], 200000);
   EXPECT_DOUBLE_EQ(l.original_balance[0], 250000);
   EXPECT_DOUBLE_EQ(l.note_rate[0], 0.065);
@@ -298,9 +298,10 @@ TEST(ReadTape, BlankLinesAreCountedAndKeepRowsAsLineNumbers) {
 
 TEST(ReadTape, QuotedCellsWithCommaQuoteAndNewline) {
   const TapeRead t = read(
-      make_tape({{{"seller", "Harbor, \"Bank\"\nof Maine"}, {"current_balance", "$250,000.00"}},
+      make_tape({{{"seller", "Quillmoor, \"Lending\"\nof Elsewhere"},
+                  {"current_balance", "$250,000.00"}},
                  {{"credit_score", "910"}}}));
-  EXPECT_EQ(t.loans.seller_names[t.loans.seller[0]], "Harbor, \"Bank\"\nof Maine");
+  EXPECT_EQ(t.loans.seller_names[t.loans.seller[0]], "Quillmoor, \"Lending\"\nof Elsewhere");
   EXPECT_DOUBLE_EQ(t.loans.current_balance[0], 250000);
   // The newline inside the quoted cell does not start a row: the next record is row 3.
   expect_reject(t, 3, "credit_score", "910", "outside 300-850");
@@ -326,7 +327,7 @@ TEST(ReadTape, RaggedRowIsRejectedWholeWithItsStart) {
   EXPECT_EQ(p.loan_id, "L2");
   EXPECT_EQ(p.reason, "row has 32 fields, header has 31");
   EXPECT_EQ(p.value.size(), 60u);
-  EXPECT_EQ(p.value.substr(0, 10), "L2,extra,H");
+  EXPECT_EQ(p.value.substr(0, 10), "L2,extra,Q");
   EXPECT_EQ(t.rows_read, 3u);
   EXPECT_EQ(t.rows_rejected, 1u);
   EXPECT_EQ(t.upb_rejected, 0);  // a ragged row's cells are not trusted, its balance included
@@ -482,7 +483,7 @@ TEST(Rejects, CombinedLtvOutside1To300Percent) {
 }
 
 TEST(Rejects, CreditScoreOutside300To850) {
-  // common practice: FICO scores run from 300 to 850
+  // common practice: credit scores run from 300 to 850
   expect_reject(read_second_row({{"credit_score", "910"}}), 3, "credit_score", "910",
                 "credit score 910 outside 300-850");
   expect_reject(read_second_row({{"credit_score", "299"}}), 3, "credit_score", "299",
@@ -780,6 +781,15 @@ TEST(Units, DecimalColumnDetectedWhenEveryValueIsAtMostOne) {
   EXPECT_NE(t.notes.back().find("original_ltv decimal"), std::string::npos);
 }
 
+TEST(Units, LtvAboveOneIsStillDecimal) {
+  // A 105% CLTV written as a decimal is 1.05; the LTV ceiling is 3.0 (300%), not 1.0.
+  const TapeRead t = read(make_tape({{{"original_ltv", "0.8"}, {"combined_ltv", "1.05"}},
+                                     {{"original_ltv", "0.75"}, {"combined_ltv", "0.75"}}}));
+  ASSERT_EQ(t.rows_accepted(), 2u);
+  EXPECT_DOUBLE_EQ(t.loans.combined_ltv[0], 1.05);
+  EXPECT_NE(t.notes.back().find("combined_ltv decimal"), std::string::npos);
+}
+
 TEST(Units, ServicingFeeHasItsOwnCeiling) {
   // A 0.25 fee is percent even beside a decimal note rate.
   const TapeRead t = read(make_tape({{{"note_rate", "0.065"}}}));
@@ -1015,6 +1025,13 @@ TEST(Dates, DateColumnsNeedACutoff) {
             ErrorKind::bad_option);
 }
 
+TEST(Dates, CutoffMustBeTheFirstOfAMonth) {
+  // DESIGN.md section 5: balances are as of the first day of the cut-off month.
+  const TapeError e = read_error(make_tape({{}}), with_cutoff(2026, 12, 15));
+  EXPECT_EQ(e.kind, ErrorKind::bad_option);
+  EXPECT_NE(std::string(e.what()).find("first day of a month"), std::string::npos) << e.what();
+}
+
 TEST(Dates, CutoffFromTheMapAndTheOptionOverridesIt) {
   std::vector<std::string> header = without(kFullHeader, {"remaining_term"});
   header.push_back("maturity_date");
@@ -1132,9 +1149,9 @@ TEST(Sellers, FirstSeenOrderOfAcceptedRows) {
 
 TEST(Sellers, MapSellerWhenNoColumn) {
   ReadOptions options;
-  options.map = parse_column_map(R"({"seller": "Harbor Bank"})", "m.json");
+  options.map = parse_column_map(R"({"seller": "Quillmoor Lending"})", "m.json");
   const TapeRead t = read(make_tape({{}}, without(kFullHeader, {"seller"})), options);
-  EXPECT_EQ(t.loans.seller_names, std::vector<std::string>{"Harbor Bank"});
+  EXPECT_EQ(t.loans.seller_names, std::vector<std::string>{"Quillmoor Lending"});
 }
 
 TEST(Sellers, FileStemWhenNoColumnAndNoMap) {
@@ -1145,9 +1162,9 @@ TEST(Sellers, FileStemWhenNoColumnAndNoMap) {
 
 TEST(Sellers, EmptySellerCellFallsBack) {
   ReadOptions options;
-  options.map = parse_column_map(R"({"seller": "Harbor Bank"})", "m.json");
+  options.map = parse_column_map(R"({"seller": "Quillmoor Lending"})", "m.json");
   const TapeRead t = read(make_tape({{{"seller", ""}}, {{"seller", "Other"}}}), options);
-  EXPECT_EQ(t.loans.seller_names, (std::vector<std::string>{"Harbor Bank", "Other"}));
+  EXPECT_EQ(t.loans.seller_names, (std::vector<std::string>{"Quillmoor Lending", "Other"}));
 }
 
 // ---- Column maps in use -------------------------------------------------------------------------
@@ -1155,7 +1172,7 @@ TEST(Sellers, EmptySellerCellFallsBack) {
 TEST(WithMap, SellerHeadersUnitsAndSpellings) {
   ReadOptions options;
   options.map = parse_column_map(R"({
-    "seller": "Harbor Bank",
+    "seller": "Quillmoor Lending",
     "cutoff_date": "2026-12-01",
     "columns": {"loan_id": ["LOAN_NO", "LoanNumber"], "current_balance": "CURR_UPB",
                 "note_rate": "RATE", "original_term": "ORIG_TERM", "maturity_date": "MAT_DT",
@@ -1180,7 +1197,7 @@ TEST(WithMap, SellerHeadersUnitsAndSpellings) {
   EXPECT_EQ(t.loans.occupancy, (std::vector<Occupancy>{Occupancy::owner, Occupancy::investor,
                                                        Occupancy::second_home, Occupancy::owner}));
   EXPECT_DOUBLE_EQ(t.loans.servicing_fee[0], 0.0025);
-  EXPECT_EQ(t.loans.seller_names, std::vector<std::string>{"Harbor Bank"});
+  EXPECT_EQ(t.loans.seller_names, std::vector<std::string>{"Quillmoor Lending"});
   expect_reject(t, 6, "OCC", "Q", "unknown occupancy 'Q'");
   EXPECT_EQ(t.problems[0].field, Field::occupancy);
   EXPECT_NE(std::find(t.notes.begin(), t.notes.end(), "ignored columns: 'Branch'"), t.notes.end());
@@ -1296,7 +1313,7 @@ TEST(Unusable, RecordTooLong) {
 }
 
 TEST(Unusable, UnterminatedQuote) {
-  const TapeError e = read_error(make_tape({{}, {}}) + "L9,\"Harbor\n");
+  const TapeError e = read_error(make_tape({{}, {}}) + "L9,\"Quillmoor\n");
   EXPECT_EQ(e.kind, ErrorKind::unterminated_quote);
   EXPECT_EQ(e.row, 4u);
 }
