@@ -1,5 +1,6 @@
 // Canonical field names, category spellings, US state codes and date parsing for tapes.
 #include "tape/fields.h"
+#include "tape/reader.h"
 
 #include <algorithm>
 #include <array>
@@ -215,8 +216,7 @@ std::optional<std::uint8_t> state_index(std::string_view code) {
 }
 
 std::optional<Date> parse_date(std::string_view text) {
-  while (!text.empty() && text.front() == ' ') text.remove_prefix(1);
-  while (!text.empty() && text.back() == ' ') text.remove_suffix(1);
+  text = detail::trim_spaces(text);
   unsigned a = 0, b = 0, c = 0;
   std::string_view first, second, third;
   const char sep = text.find('-') != std::string_view::npos ? '-' : '/';

@@ -202,25 +202,8 @@ TEST_F(Cli, BadTapeExitsThreeAndListsEveryRejectedRow) {
 
 // ---- Files that cannot be read as tapes ---------------------------------------------------------
 
-// The corpus files that are not tapes at all (tests/tape/malformed/README.md).
-const std::vector<std::string> kUnusableCorpusTapes = {
-    "empty.csv",
-    "bom-only.csv",
-    "blank-lines-only.csv",
-    "header-only.csv",
-    "header-and-blank-lines.csv",
-    "semicolon-delimited.csv",
-    "tab-delimited.csv",
-    "pipe-delimited.csv",
-    "cr-line-endings.csv",
-    "binary-nul.csv",
-    "utf16.csv",
-    "unterminated-quote.csv",
-    "missing-loan-id-column.csv",
-    "missing-remaining-term-column.csv",
-    "missing-servicing-fee-column.csv",
-    "duplicate-column.csv",
-};
+// Each file of tests/tape/malformed/ (tapes and column maps) is run through `poolbid check`, and
+// its exit code and output checked, by tests/tape/malformed_corpus_test.cpp.
 
 // One line on stderr that names `file`, and nothing on stdout: nothing is written.
 void expect_one_error_line(const Outcome& r, const std::string& file, int code) {
@@ -230,14 +213,6 @@ void expect_one_error_line(const Outcome& r, const std::string& file, int code) 
   EXPECT_EQ(r.err.rfind("poolbid: ", 0), 0u) << r.err;
   EXPECT_NE(r.err.find(file), std::string::npos) << "stderr does not name " << file << ": "
                                                  << r.err;
-}
-
-TEST_F(Cli, UnusableCorpusTapesExitFour) {
-  for (const std::string& name : kUnusableCorpusTapes) {
-    const std::string file = kCorpus + name;
-    expect_one_error_line(poolbid({"check", file}), file, kUnusableTape);
-    expect_one_error_line(poolbid({"strats", file, "--json"}), file, kUnusableTape);
-  }
 }
 
 TEST_F(Cli, RunawayRowOfTwoMebibytesExitsFour) {
@@ -260,41 +235,9 @@ TEST_F(Cli, MissingTapeAndDirectoryExitFour) {
   expect_one_error_line(poolbid({"check", "demo-pools"}), "demo-pools", kUnusableTape);
 }
 
-// Every corpus tape, whatever its fault, ends in a documented exit code: a report on stdout and
-// nothing on stderr (0, 3), or one line on stderr and nothing on stdout (4, 5); never a crash.
-TEST_F(Cli, EveryCorpusTapeEndsInADocumentedExitCode) {
-  std::size_t tapes = 0;
-  for (const fs::directory_entry& entry : fs::directory_iterator(kSource / kCorpus)) {
-    const std::string name = entry.path().filename().string();
-    if (entry.path().extension() != ".csv") continue;
-    ++tapes;
-    const std::string file = kCorpus + name;
-    const Outcome r = poolbid({"check", file, "--json"});
-    if (r.exit_code == kOk || r.exit_code == kRowsRejected) {
-      EXPECT_EQ(r.err, "") << file;
-      const json doc = json::parse(r.out);
-      EXPECT_TRUE(rows_add_up(doc)) << file;
-      EXPECT_EQ(r.exit_code == kRowsRejected, count_at(doc, "rows_rejected") > 0) << file;
-    } else if (r.exit_code == kUnusableTape || r.exit_code == kUnusableInput) {
-      expect_one_error_line(r, file, r.exit_code);
-    } else {
-      ADD_FAILURE() << file << ": undocumented exit code\n" << r;
-    }
-  }
-  EXPECT_GE(tapes, 24u);
-}
-
 // ---- Other unusable inputs ----------------------------------------------------------------------
 
-TEST_F(Cli, BadColumnMapsExitFive) {
-  for (const std::string name :
-       {"bad-map-json.map.json", "bad-map-unknown-field.map.json", "bad-map-unknown-unit.map.json",
-        "bad-map-cutoff.map.json", "bad-map-fee-as-text.map.json"}) {
-    const std::string map = kCorpus + name;
-    expect_one_error_line(poolbid({"check", kLoose, "--map", map}), map, kUnusableInput);
-    expect_one_error_line(poolbid({"strats", kLoose, "--map", map, "--json"}), map,
-                          kUnusableInput);
-  }
+TEST_F(Cli, MissingColumnMapExitsFive) {
   expect_one_error_line(poolbid({"check", kLoose, "--map", "demo-pools/no-such.map.json"}),
                         "demo-pools/no-such.map.json", kUnusableInput);
 }

@@ -1,16 +1,22 @@
 // The malformed-tape corpus (tests/tape/malformed/): one table row per file, saying exactly how
 // the reader must answer it: the TapeError for a file that cannot be a tape, the one RowProblem
 // for a file with one bad row, or no problem at all for a file whose only oddity the reader
-// skips. Also checks that every file in the folder has a row here.
+// skips; and the exit code `poolbid check` ends in, checked by running the command on the file.
+// Also checks that every file in the folder has a row here.
 #include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cctype>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <iterator>
+#include <nlohmann/json.hpp>
 #include <optional>
 #include <set>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -20,14 +26,24 @@ namespace {
 
 using namespace poolbid;
 namespace fs = std::filesystem;
+using nlohmann::json;
 
-const fs::path kCorpus = fs::path(POOLBID_SOURCE_DIR) / "tests" / "tape" / "malformed";
+const fs::path kSource = POOLBID_SOURCE_DIR;
+const std::string kBinary = POOLBID_BINARY;
+const std::string kCorpusFolder = "tests/tape/malformed";  // from the source root
+const fs::path kCorpus = kSource / kCorpusFolder;
+
+// The good tape the command reads beside each column map: the map fails before it is read.
+const std::string kGoodTape = "demo-pools/brindlecote-strict.csv";
 
 // Files the folder holds that are not tapes or maps.
 const std::set<std::string> kNotCorpus = {"README.md"};
 
 // Every corpus tape has 5 data rows (L001..L005, tape rows 2..6) unless it cannot be read.
 constexpr std::size_t kRowsInCorpusTape = 5;
+
+// Exit codes of `poolbid`, as the README's table gives them.
+constexpr int kOk = 0, kRowsRejected = 3, kUnusableTape = 4, kUnusableInput = 5;
 
 // A file that cannot be read as a tape (or a map that cannot be read as a map).
 struct FileFault {
@@ -52,27 +68,42 @@ struct Skipped {
   std::size_t blank_lines;
 };
 
+// The row `poolbid check` rejects where the command reads a file otherwise than the library call
+// in the table does (the command has no row-limit option: it reads at the default limit).
+struct CommandReject {
+  std::size_t row;
+  std::string reason_part;
+};
+
 struct Case {
   std::string file;
+  int exit_code;  // of `poolbid check FILE` (a map: `poolbid check kGoodTape --map FILE`)
   std::optional<FileFault> file_fault;
   std::optional<RowFault> row_fault;
   std::size_t max_record_bytes = ReadOptions{}.max_record_bytes;
   std::optional<Skipped> skipped{};
+  std::optional<CommandReject> command_reject{};
 };
 
-Case file_case(std::string file, FileFault fault, std::size_t max_record_bytes = 0) {
-  Case c{std::move(file), std::move(fault), std::nullopt};
+Case file_case(std::string file, int exit_code, FileFault fault,
+               std::size_t max_record_bytes = 0) {
+  Case c{std::move(file), exit_code, std::move(fault), std::nullopt};
   if (max_record_bytes != 0) c.max_record_bytes = max_record_bytes;
   return c;
 }
 
-Case row_case(std::string file, RowFault fault) {
-  return Case{std::move(file), std::nullopt, std::move(fault)};
+Case row_case(std::string file, int exit_code, RowFault fault) {
+  return Case{std::move(file), exit_code, std::nullopt, std::move(fault)};
 }
 
-Case skipped_case(std::string file, Skipped skipped) {
-  Case c{std::move(file), std::nullopt, std::nullopt};
+Case skipped_case(std::string file, int exit_code, Skipped skipped) {
+  Case c{std::move(file), exit_code, std::nullopt, std::nullopt};
   c.skipped = skipped;
+  return c;
+}
+
+Case with_command_reject(Case c, CommandReject reject) {
+  c.command_reject = std::move(reject);
   return c;
 }
 
@@ -80,170 +111,186 @@ Case skipped_case(std::string file, Skipped skipped) {
 const std::vector<Case>& corpus_table() {
   static const std::vector<Case> table = {
       // ---- Files that are not tapes ------------------------------------------------------------
-      file_case("empty.csv", {ErrorKind::empty, 0, "", "the file is empty"}),
+      file_case("empty.csv", kUnusableTape, {ErrorKind::empty, 0, "", "the file is empty"}),
       // source: the Unicode Standard: the byte-order mark U+FEFF, in UTF-8 the bytes EF BB BF.
-      file_case("bom-only.csv", {ErrorKind::empty, 0, "", "no header and no rows"}),
-      file_case("blank-lines-only.csv", {ErrorKind::empty, 0, "", "no header and no rows"}),
-      file_case("header-only.csv", {ErrorKind::no_data_rows, 0, "", "no data rows"}),
-      file_case("header-and-blank-lines.csv", {ErrorKind::no_data_rows, 0, "", "no data rows"}),
-      file_case("semicolon-delimited.csv",
+      file_case("bom-only.csv", kUnusableTape, {ErrorKind::empty, 0, "", "no header and no rows"}),
+      file_case("blank-lines-only.csv", kUnusableTape,
+                {ErrorKind::empty, 0, "", "no header and no rows"}),
+      file_case("header-only.csv", kUnusableTape, {ErrorKind::no_data_rows, 0, "", "no data rows"}),
+      file_case("header-and-blank-lines.csv", kUnusableTape,
+                {ErrorKind::no_data_rows, 0, "", "no data rows"}),
+      file_case("semicolon-delimited.csv", kUnusableTape,
                 {ErrorKind::wrong_delimiter, 0, "", "looks semicolon-delimited"}),
-      file_case("tab-delimited.csv", {ErrorKind::wrong_delimiter, 0, "", "looks tab-delimited"}),
-      file_case("pipe-delimited.csv", {ErrorKind::wrong_delimiter, 0, "", "looks pipe-delimited"}),
+      file_case("tab-delimited.csv", kUnusableTape,
+                {ErrorKind::wrong_delimiter, 0, "", "looks tab-delimited"}),
+      file_case("pipe-delimited.csv", kUnusableTape,
+                {ErrorKind::wrong_delimiter, 0, "", "looks pipe-delimited"}),
       // Lines ending in a lone CR (old Mac "CSV" export): the file is one long line. The message
       // must say so; "no data rows" sends the reader looking for a problem that is not there.
-      file_case("cr-line-endings.csv", {ErrorKind::wrong_delimiter, 0, "", "line end"}),
-      file_case("binary-nul.csv", {ErrorKind::binary, 0, "", "not a text file"}),
-      file_case("utf16.csv", {ErrorKind::binary, 0, "", "UTF-16"}),
+      file_case("cr-line-endings.csv", kUnusableTape,
+                {ErrorKind::wrong_delimiter, 0, "", "line end"}),
+      file_case("binary-nul.csv", kUnusableTape, {ErrorKind::binary, 0, "", "not a text file"}),
+      file_case("utf16.csv", kUnusableTape, {ErrorKind::binary, 0, "", "UTF-16"}),
       // Line breaks lost after L001: rows L002..L005 run together into one 371-byte record.
       // The committed file is small, so the limit is lowered; RunawayRowAtTheDefaultLimit below
-      // builds a 2 MiB row instead.
-      file_case("runaway-row.csv",
-                {ErrorKind::record_too_long, 3, "", "row is longer than 256 bytes"}, 256),
+      // builds a 2 MiB row instead. The command reads it at the default limit, where the long
+      // row is one ragged row: rejected, and the tape read (its 2 MiB runaway exiting 4 is
+      // tests/app/cli_test.cpp's RunawayRowOfTwoMebibytesExitsFour).
+      with_command_reject(
+          file_case("runaway-row.csv", kRowsRejected,
+                    {ErrorKind::record_too_long, 3, "", "row is longer than 256 bytes"}, 256),
+          {3, "row has 61 fields, header has 16"}),
       // source: RFC 4180 section 2, rules 5-7 (a field that opens with a quote runs to its
       // closing quote).
-      file_case("unterminated-quote.csv",
+      file_case("unterminated-quote.csv", kUnusableTape,
                 {ErrorKind::unterminated_quote, 4, "", "never closed"}),
-      file_case("missing-loan-id-column.csv",
+      file_case("missing-loan-id-column.csv", kUnusableTape,
                 {ErrorKind::missing_column, 0, "", "no column for loan_id"}),
-      file_case("missing-remaining-term-column.csv",
+      file_case("missing-remaining-term-column.csv", kUnusableTape,
                 {ErrorKind::missing_column, 0, "",
                  "no column for remaining_term or maturity_date"}),
-      file_case("missing-servicing-fee-column.csv",
+      file_case("missing-servicing-fee-column.csv", kUnusableTape,
                 {ErrorKind::missing_column, 0, "", "no column for servicing_fee"}),
-      file_case("duplicate-column.csv",
+      file_case("duplicate-column.csv", kUnusableTape,
                 {ErrorKind::duplicate_column, 1, "note_rate", "both give note_rate"}),
-      file_case("maturity-without-cutoff.csv",
+      file_case("maturity-without-cutoff.csv", kUnusableInput,
                 {ErrorKind::bad_option, 0, "maturity_date", "give --cutoff"}),
 
       // ---- Column maps that are not maps -------------------------------------------------------
-      file_case("bad-map-json.map.json", {ErrorKind::bad_map, 0, "", "not valid JSON"}),
-      file_case("bad-map-unknown-field.map.json",
+      file_case("bad-map-json.map.json", kUnusableInput,
+                {ErrorKind::bad_map, 0, "", "not valid JSON"}),
+      file_case("bad-map-unknown-field.map.json", kUnusableInput,
                 {ErrorKind::bad_map, 0, "columns.current_upb", "unknown field name 'current_upb'"}),
       // The message shows the value at fault, not only the key.
-      file_case("bad-map-unknown-unit.map.json",
+      file_case("bad-map-unknown-unit.map.json", kUnusableInput,
                 {ErrorKind::bad_map, 0, "units.note_rate",
                  "units.note_rate: unknown unit 'basis_points' (percent or decimal)"}),
-      file_case("bad-map-cutoff.map.json",
+      file_case("bad-map-cutoff.map.json", kUnusableInput,
                 {ErrorKind::bad_map, 0, "cutoff_date", "'12/2026' is not a date"}),
-      file_case("bad-map-fee-as-text.map.json",
+      file_case("bad-map-fee-as-text.map.json", kUnusableInput,
                 {ErrorKind::bad_map, 0, "defaults.servicing_fee",
                  "defaults.servicing_fee: must be a number, got \"0.25%\""}),
 
       // ---- One rejected row --------------------------------------------------------------------
-      row_case("negative-balance.csv",
+      row_case("negative-balance.csv", kRowsRejected,
                {4, "L003", "current_balance", "-145900.00", true, "not above 0"}),
-      row_case("zero-balance.csv", {4, "L003", "current_balance", "0.00", true, "not above 0"}),
+      row_case("zero-balance.csv", kRowsRejected,
+               {4, "L003", "current_balance", "0.00", true, "not above 0"}),
       // source: RFC 4180 section 2, rules 5-6 (the cell is quoted for its comma; the value is
       // the text between the quotes).
-      row_case("unparsable-balance.csv",
+      row_case("unparsable-balance.csv", kRowsRejected,
                {4, "L003", "current_balance", "145,9OO.00", true, "not a number"}),
       // A spreadsheet's display of 145,900 in exponent notation: not how a seller writes dollars.
-      row_case("balance-exponent.csv",
+      row_case("balance-exponent.csv", kRowsRejected,
                {4, "L003", "current_balance", "1.459E+05", true, "not a number"}),
       // Cents typed into a dollar column, or a deal total in a loan's cell.
-      row_case("balance-too-large.csv",
+      row_case("balance-too-large.csv", kRowsRejected,
                {4, "L003", "current_balance", "1459000000.00", true,
                 "current balance 1459000000.00 above $100,000,000: not a residential loan "
                 "balance"}),
-      row_case("rate-too-high.csv",
+      row_case("rate-too-high.csv", kRowsRejected,
                {4, "L003", "note_rate", "71.25", true, "note rate 71.25% outside 0-25%"}),
       // "7,125" is 7.125% written with a decimal comma. Rates carry no thousands separators, so
       // this is not 7125%: the reason must say the cell is not a number.
-      row_case("decimal-comma-rate.csv", {4, "L003", "note_rate", "7,125", true, "not a number"}),
+      row_case("decimal-comma-rate.csv", kRowsRejected,
+               {4, "L003", "note_rate", "7,125", true, "not a number"}),
       // 0.07125 in a column of percent: the fault is the note rate, and the reason should say
       // it looks like a decimal, not blame the servicing fee beside it.
-      row_case("decimal-rate-in-percent-column.csv",
+      row_case("decimal-rate-in-percent-column.csv", kRowsRejected,
                {4, "L003", "note_rate", "0.07125", true, "a decimal in a percent column"}),
-      row_case("fee-above-rate.csv",
+      row_case("fee-above-rate.csv", kRowsRejected,
                {4, "L003", "servicing_fee", "7.5", true, "not below note rate 7.125%"}),
-      row_case("required-field-blank.csv",
+      row_case("required-field-blank.csv", kRowsRejected,
                {4, "L003", "note_rate", "", true, "required field missing"}),
-      row_case("blank-loan-id.csv", {4, "", "loan_id", "", true, "required field missing"}),
-      row_case("fractional-term.csv",
+      row_case("blank-loan-id.csv", kRowsRejected,
+               {4, "", "loan_id", "", true, "required field missing"}),
+      row_case("fractional-term.csv", kRowsRejected,
                {4, "L003", "original_term", "360.5", true, "not a whole number"}),
-      row_case("remaining-over-original.csv",
+      row_case("remaining-over-original.csv", kRowsRejected,
                {4, "L003", "remaining_term", "372", true, "above the original term 360"}),
-      row_case("remaining-zero.csv",
+      row_case("remaining-zero.csv", kRowsRejected,
                {4, "L003", "remaining_term", "0", true, "remaining term 0 months not above 0"}),
-      row_case("negative-age.csv", {4, "L003", "loan_age", "-30", true, "below 0"}),
-      row_case("ltv-too-high.csv",
+      row_case("negative-age.csv", kRowsRejected, {4, "L003", "loan_age", "-30", true, "below 0"}),
+      row_case("ltv-too-high.csv", kRowsRejected,
                {4, "L003", "original_ltv", "900", true, "original LTV 900% outside 1-300%"}),
       // 0.9 in a column of percent reads as 0.9%, below any first lien's LTV.
-      row_case("ltv-too-low.csv",
+      row_case("ltv-too-low.csv", kRowsRejected,
                {4, "L003", "original_ltv", "0.9", true, "original LTV 0.9% outside 1-300%"}),
       // common practice: credit scores on a tape run 300-850.
-      row_case("score-too-high.csv",
+      row_case("score-too-high.csv", kRowsRejected,
                {4, "L003", "credit_score", "7050", true, "outside 300-850"}),
-      row_case("score-zero.csv", {4, "L003", "credit_score", "0", true, "outside 300-850"}),
-      row_case("dti-over-100.csv", {4, "L003", "dti", "410", true, "DTI 410% outside 0-100%"}),
+      row_case("score-zero.csv", kRowsRejected,
+               {4, "L003", "credit_score", "0", true, "outside 300-850"}),
+      row_case("dti-over-100.csv", kRowsRejected,
+               {4, "L003", "dti", "410", true, "DTI 410% outside 0-100%"}),
       // A decimal DTI column (0.36) with one cell written in percent (41): the column stays
       // decimal and that one cell is 4100%, rather than every other loan's DTI becoming 0.36%.
       // DESIGN.md section 2 says unanimity; majority chosen so one stray cell cannot flip a column
-      row_case("dti-stray-percent.csv",
+      row_case("dti-stray-percent.csv", kRowsRejected,
                {4, "L003", "dti", "41", true, "DTI 4100% outside 0-100% (column read as decimal)"}),
       // A lifetime cap column in decimals (0.115) with L003's in percent (11.625). No range rule
       // catches 1162.5% (it is above the note rate), so the unit itself rejects the cell.
-      row_case("arm-lifetime-cap-stray-percent.csv",
+      row_case("arm-lifetime-cap-stray-percent.csv", kRowsRejected,
                {4, "L003", "arm_lifetime_cap", "11.625", true,
                 "ARM lifetime cap 1162.5%: looks like percent in a column read as decimal"}),
       // source: USPS Publication 28, two-letter state abbreviations.
-      row_case("unknown-state.csv", {4, "L003", "state", "XX", true, "unknown state code"}),
-      row_case("state-full-name.csv",
+      row_case("unknown-state.csv", kRowsRejected,
+               {4, "L003", "state", "XX", true, "unknown state code"}),
+      row_case("state-full-name.csv", kRowsRejected,
                {4, "L003", "state", "Florida", true, "unknown state code"}),
-      row_case("unknown-occupancy.csv",
+      row_case("unknown-occupancy.csv", kRowsRejected,
                {4, "L003", "occupancy", "S", true, "unknown occupancy 'S'"}),
       // The lifetime cap is the highest note rate the loan allows; 4.5% under a 7.125% rate is
       // not a cap at all (common practice).
-      row_case("arm-lifetime-cap-below-rate.csv",
+      row_case("arm-lifetime-cap-below-rate.csv", kRowsRejected,
                {4, "L003", "arm_lifetime_cap", "4.5", true,
                 "ARM lifetime cap 4.5% below the note rate 7.125%"}),
       // common practice: ARM margins run about 1.5%-5%; 27.5% is a misplaced point.
-      row_case("arm-margin-too-high.csv",
+      row_case("arm-margin-too-high.csv", kRowsRejected,
                {4, "L003", "arm_margin", "27.5", true, "ARM margin 27.5% outside 0-15%"}),
       // One problem for the cell: not also "ARM without a margin".
-      row_case("arm-margin-not-a-number.csv",
+      row_case("arm-margin-not-a-number.csv", kRowsRejected,
                {4, "L003", "arm_margin", "2.7S", true, "not a number"}),
       // The floor is the lowest note rate the loan allows: 8% under a 7.125% rate is no floor.
-      row_case("arm-floor-above-rate.csv",
+      row_case("arm-floor-above-rate.csv", kRowsRejected,
                {4, "L003", "arm_floor", "8", true, "ARM floor 8% above the note rate 7.125%"}),
-      row_case("arm-first-reset-beyond-term.csv",
+      row_case("arm-first-reset-beyond-term.csv", kRowsRejected,
                {4, "L003", "arm_first_reset", "420", true,
                 "ARM first reset month 420 beyond the original term 360"}),
-      row_case("bad-date.csv",
+      row_case("bad-date.csv", kRowsRejected,
                {4, "L003", "property_value_date", "2024-02-30", true, "not a date"}),
-      row_case("duplicate-loan-id.csv",
+      row_case("duplicate-loan-id.csv", kRowsRejected,
                {5, "L002", "loan_id", "L002", true, "duplicate loan id, first at row 3"}),
       // A whole-row problem shows the row's first 60 bytes as its value.
-      row_case("ragged-row.csv",
+      row_case("ragged-row.csv", kRowsRejected,
                {4, "L003", "", "L003,Quillmoor Lending,145900.00,160000.00,7.125,0.375,360,3",
                 true, "row has 15 fields, header has 16"}),
       // Two tapes pasted together: the second header is one reject, not a reject per cell.
-      row_case("header-repeated.csv",
+      row_case("header-repeated.csv", kRowsRejected,
                {4, "", "", "loan_id,seller,current_balance,original_balance,note_rate,se", true,
                 "repeats the header row (two tapes pasted together?)"}),
 
       // ---- One row accepted with a warning -----------------------------------------------------
-      row_case("term-mismatch-warning.csv",
+      row_case("term-mismatch-warning.csv", kOk,
                {4, "L003", "remaining_term", "327", false,
                 "loan age 30 + remaining term 327 = 357 months, original term 360"}),
-      row_case("cltv-below-ltv-warning.csv",
+      row_case("cltv-below-ltv-warning.csv", kOk,
                {4, "L003", "combined_ltv", "80", false, "combined LTV 80% below original LTV 90%"}),
-      row_case("balance-above-original-warning.csv",
+      row_case("balance-above-original-warning.csv", kOk,
                {4, "L003", "current_balance", "161250.00", false,
                 "current balance 161250.00 above original balance 160000.00"}),
       // One warning for the loan, on its current balance (the original is above $5M too).
-      row_case("balance-jumbo-warning.csv",
+      row_case("balance-jumbo-warning.csv", kOk,
                {4, "L003", "current_balance", "5145900.00", false,
                 "current balance 5145900.00 above $5,000,000 (jumbo: check it)"}),
       // 0.41 in a percent DTI column is 0.41%: kept, but said.
-      row_case("dti-stray-decimal-warning.csv",
+      row_case("dti-stray-decimal-warning.csv", kOk,
                {4, "L003", "dti", "0.41", false,
                 "DTI 0.41% looks like a decimal in a percent column"}),
 
       // ---- Nothing wrong once skipped ----------------------------------------------------------
       // Rows of only commas or spaces, as a spreadsheet leaves them: blank lines, not rejects.
-      skipped_case("comma-only-rows.csv", {4}),
+      skipped_case("comma-only-rows.csv", kOk, {4}),
   };
   return table;
 }
@@ -336,6 +383,135 @@ TEST_P(MalformedCorpus, AnswersAsTheTableSays) {
   EXPECT_EQ(kept, !want.reject);
 }
 
+// ---- The command on each file ----------------------------------------------------------------
+
+struct Outcome {
+  int exit_code;
+  std::string out, err;
+};
+
+std::ostream& operator<<(std::ostream& os, const Outcome& r) {
+  return os << "exit " << r.exit_code << "\n--- stderr:\n"
+            << r.err << "--- stdout (first 2000 bytes):\n"
+            << r.out.substr(0, 2000);
+}
+
+std::string read_file(const fs::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  return std::string((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+}
+
+std::string shell_quoted(const std::string& text) {
+  std::string out = "'";
+  for (char ch : text) out += ch == '\'' ? std::string("'\\''") : std::string(1, ch);
+  return out + "'";
+}
+
+// Runs `poolbid args...` from the source root (the table's paths are relative to it). Standard
+// output and error go to files in a scratch folder of this run's own (tests run in parallel).
+Outcome run_poolbid(const std::vector<std::string>& args) {
+  std::string scratch_name = (fs::temp_directory_path() / "poolbid_corpus_XXXXXX").string();
+  if (::mkdtemp(scratch_name.data()) == nullptr) {
+    ADD_FAILURE() << "cannot make a scratch folder " << scratch_name;
+    return {-1, "", ""};
+  }
+  const fs::path scratch = scratch_name, out = scratch / "stdout", err = scratch / "stderr";
+  std::string command = "cd " + shell_quoted(kSource.string()) + " && " + shell_quoted(kBinary);
+  for (const std::string& a : args) command += " " + shell_quoted(a);
+  command += " >" + shell_quoted(out.string()) + " 2>" + shell_quoted(err.string()) + " </dev/null";
+  const int status = std::system(command.c_str());
+  Outcome r{-1, read_file(out), read_file(err)};
+  if (status != -1 && WIFEXITED(status)) r.exit_code = WEXITSTATUS(status);
+  fs::remove_all(scratch);
+  return r;
+}
+
+// `poolbid COMMAND` on the case's file: a tape by itself, a map beside kGoodTape.
+std::vector<std::string> command_line(const Case& c, const std::string& command) {
+  const std::string path = kCorpusFolder + "/" + c.file;
+  if (is_map(c.file)) return {command, kGoodTape, "--map", path};
+  return {command, path};
+}
+
+// Whether `text` says "row N", N not the start of a longer number.
+bool names_row(const std::string& text, std::size_t row) {
+  const std::string want = "row " + std::to_string(row);
+  for (std::size_t at = text.find(want); at != std::string::npos; at = text.find(want, at + 1)) {
+    const std::size_t end = at + want.size();
+    if (end == text.size() || !std::isdigit(static_cast<unsigned char>(text[end]))) return true;
+  }
+  return false;
+}
+
+// The lines of a `check` text report that list a problem on `row`: such a line starts with the
+// row number, and carries REJECT or warn and the reason.
+std::vector<std::string> problem_lines(const std::string& report, std::size_t row) {
+  std::vector<std::string> found;
+  std::istringstream lines(report);
+  for (std::string line; std::getline(lines, line);) {
+    std::size_t listed = 0;
+    if (std::istringstream(line) >> listed && listed == row) found.push_back(line);
+  }
+  return found;
+}
+
+std::size_t count_at(const json& doc, const char* key) { return doc.at(key).get<std::size_t>(); }
+
+TEST_P(MalformedCorpus, CommandExitsAsTheTableSays) {
+  const Case& c = GetParam();
+  const std::string path = kCorpusFolder + "/" + c.file;
+  const Outcome text = run_poolbid(command_line(c, "check"));
+  ASSERT_EQ(text.exit_code, c.exit_code) << c.file << "\n" << text;
+
+  if (c.exit_code == kUnusableTape || c.exit_code == kUnusableInput) {
+    // One line on stderr naming the file, and the row where the error has one; nothing on
+    // stdout. strats reads the tape the same way and must fail the same way.
+    ASSERT_TRUE(c.file_fault) << c.file << ": exit " << c.exit_code << " needs a FileFault";
+    const std::size_t row = c.file_fault->row;
+    std::vector<std::string> strats = command_line(c, "strats");
+    strats.push_back("--json");
+    for (const Outcome& r : {text, run_poolbid(strats)}) {
+      EXPECT_EQ(r.exit_code, c.exit_code) << r;
+      EXPECT_EQ(r.out, "") << r;
+      EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << r;
+      EXPECT_EQ(r.err.rfind("poolbid: ", 0), 0u) << r;
+      EXPECT_NE(r.err.find(path), std::string::npos) << "stderr does not name " << path << "\n"
+                                                     << r;
+      if (row != 0) {
+        EXPECT_TRUE(names_row(r.err, row)) << "stderr does not name row " << row << "\n" << r;
+      }
+    }
+    return;
+  }
+
+  // A report on stdout, nothing on stderr; the row at fault listed with its reason.
+  EXPECT_EQ(text.err, "") << text;
+  if (c.row_fault || c.command_reject) {
+    const std::size_t row = c.command_reject ? c.command_reject->row : c.row_fault->row;
+    const std::string& reason =
+        c.command_reject ? c.command_reject->reason_part : c.row_fault->reason_part;
+    const bool reject = c.command_reject || c.row_fault->reject;
+    const std::vector<std::string> lines = problem_lines(text.out, row);
+    ASSERT_EQ(lines.size(), 1u) << "row " << row << " is not listed once\n" << text;
+    EXPECT_NE(lines.front().find(reject ? "REJECT" : "warn"), std::string::npos) << lines.front();
+    EXPECT_NE(lines.front().find(reason), std::string::npos) << lines.front();
+  } else {
+    EXPECT_NE(text.out.find("problems: none"), std::string::npos) << text;
+  }
+
+  std::vector<std::string> args = command_line(c, "check");
+  args.push_back("--json");
+  const Outcome j = run_poolbid(args);
+  ASSERT_EQ(j.exit_code, c.exit_code) << j;
+  EXPECT_EQ(j.err, "") << j;
+  const json doc = json::parse(j.out, nullptr, /*allow_exceptions*/ false);
+  ASSERT_FALSE(doc.is_discarded()) << "stdout is not JSON\n" << j;
+  EXPECT_EQ(count_at(doc, "rows_read"),
+            count_at(doc, "rows_accepted") + count_at(doc, "rows_rejected"))
+      << j.out;
+  EXPECT_EQ(count_at(doc, "rows_rejected") > 0, c.exit_code == kRowsRejected) << j.out;
+}
+
 std::string test_name(const testing::TestParamInfo<Case>& info) {
   std::string name = info.param.file;
   for (char& ch : name)
@@ -370,8 +546,11 @@ TEST(MalformedCorpusFolder, ReadmeHasALinePerFile) {
   std::ifstream in(kCorpus / "README.md");
   ASSERT_TRUE(in) << "no README.md in " << kCorpus;
   const std::string readme((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-  for (const Case& c : corpus_table())
-    EXPECT_NE(readme.find("`" + c.file + "`"), std::string::npos) << c.file << " not in README.md";
+  // Each file's line starts "- `FILE` (exit N)", N the table's exit code.
+  for (const Case& c : corpus_table()) {
+    const std::string line = "- `" + c.file + "` (exit " + std::to_string(c.exit_code) + ")";
+    EXPECT_NE(readme.find(line), std::string::npos) << "README.md has no line " << line;
+  }
 }
 
 // The same runaway as runaway-row.csv at the default limit: a 2 MiB row with no line end
