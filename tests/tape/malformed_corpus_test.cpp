@@ -21,15 +21,17 @@
 #include <vector>
 
 #include "tape/tape.h"
+#include "tests/support/run_poolbid.h"
 
 namespace {
+
+using namespace poolbid::testing_support;
 
 using namespace poolbid;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
 const fs::path kSource = POOLBID_SOURCE_DIR;
-const std::string kBinary = POOLBID_BINARY;
 const std::string kCorpusFolder = "tests/tape/malformed";  // from the source root
 const fs::path kCorpus = kSource / kCorpusFolder;
 
@@ -384,47 +386,6 @@ TEST_P(MalformedCorpus, AnswersAsTheTableSays) {
 }
 
 // ---- The command on each file ----------------------------------------------------------------
-
-struct Outcome {
-  int exit_code;
-  std::string out, err;
-};
-
-std::ostream& operator<<(std::ostream& os, const Outcome& r) {
-  return os << "exit " << r.exit_code << "\n--- stderr:\n"
-            << r.err << "--- stdout (first 2000 bytes):\n"
-            << r.out.substr(0, 2000);
-}
-
-std::string read_file(const fs::path& path) {
-  std::ifstream in(path, std::ios::binary);
-  return std::string((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-}
-
-std::string shell_quoted(const std::string& text) {
-  std::string out = "'";
-  for (char ch : text) out += ch == '\'' ? std::string("'\\''") : std::string(1, ch);
-  return out + "'";
-}
-
-// Runs `poolbid args...` from the source root (the table's paths are relative to it). Standard
-// output and error go to files in a scratch folder of this run's own (tests run in parallel).
-Outcome run_poolbid(const std::vector<std::string>& args) {
-  std::string scratch_name = (fs::temp_directory_path() / "poolbid_corpus_XXXXXX").string();
-  if (::mkdtemp(scratch_name.data()) == nullptr) {
-    ADD_FAILURE() << "cannot make a scratch folder " << scratch_name;
-    return {-1, "", ""};
-  }
-  const fs::path scratch = scratch_name, out = scratch / "stdout", err = scratch / "stderr";
-  std::string command = "cd " + shell_quoted(kSource.string()) + " && " + shell_quoted(kBinary);
-  for (const std::string& a : args) command += " " + shell_quoted(a);
-  command += " >" + shell_quoted(out.string()) + " 2>" + shell_quoted(err.string()) + " </dev/null";
-  const int status = std::system(command.c_str());
-  Outcome r{-1, read_file(out), read_file(err)};
-  if (status != -1 && WIFEXITED(status)) r.exit_code = WEXITSTATUS(status);
-  fs::remove_all(scratch);
-  return r;
-}
 
 // `poolbid COMMAND` on the case's file: a tape by itself, a map beside kGoodTape.
 std::vector<std::string> command_line(const Case& c, const std::string& command) {
