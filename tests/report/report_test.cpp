@@ -13,49 +13,15 @@
 #include "report/format.h"
 #include "report/report.h"
 #include "tape/tape.h"
+#include "tests/support/loans.h"
 
 namespace poolbid {
 namespace {
 
 using nlohmann::json;
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-void add_loan(LoanArrays& a, std::string id, double upb, double rate, double score, double ltv,
-              const char* state) {
-  a.loan_id.push_back(std::move(id));
-  a.row.push_back(static_cast<std::uint32_t>(a.row.size() + 2));
-  a.seller.push_back(0);
-  a.current_balance.push_back(upb);
-  a.original_balance.push_back(kNaN);
-  a.note_rate.push_back(rate);
-  a.servicing_fee.push_back(0.0025);
-  a.original_term.push_back(360);
-  a.remaining_term.push_back(350);
-  a.age.push_back(10);
-  a.amortization.push_back(Amortization::fixed);
-  a.io_months.push_back(0);
-  a.balloon_month.push_back(0);
-  a.arm_index.push_back(0);
-  a.arm_margin.push_back(kNaN);
-  a.arm_periodic_cap.push_back(kNaN);
-  a.arm_lifetime_cap.push_back(kNaN);
-  a.arm_floor.push_back(kNaN);
-  a.arm_first_reset.push_back(0);
-  a.arm_reset_period.push_back(0);
-  a.credit_score.push_back(score);
-  a.original_ltv.push_back(ltv);
-  a.combined_ltv.push_back(ltv);
-  a.dti.push_back(0.36);
-  a.property_value.push_back(kNaN);
-  a.property_value_date.push_back(kNoDate);
-  a.occupancy.push_back(Occupancy::owner);
-  a.property_type.push_back(PropertyType::single_family);
-  a.purpose.push_back(Purpose::purchase);
-  a.documentation.push_back(Documentation::full);
-  a.state.push_back(state_index(state).value_or(0));
-  a.delinquency.push_back(Delinquency::current);
-}
+using testing_support::kNaN;
+using testing_support::make_loans;
 
 // Seven data rows and a blank line: four accepted (one with a warning), three rejected. Row 5's
 // loan id holds bytes that are not UTF-8 and an escape character.
@@ -63,10 +29,14 @@ TapeRead sample_tape() {
   TapeRead t;
   t.file = "pool.csv";
   t.cutoff = Date{std::chrono::year{2026}, std::chrono::month{12}, std::chrono::day{1}};
-  add_loan(t.loans, "L001", 250'000, 0.065, 740, 0.80, "CA");
-  add_loan(t.loans, "L002", 1'250'000.5, 0.07125, 700, 0.75, "TX");
-  add_loan(t.loans, "L003", 90'000, 0.05875, kNaN, 0.95, "FL");
-  add_loan(t.loans, "L004", 400'000, 0.06, 790, kNaN, "CA");
+  t.loans = make_loans({
+      {.id = "L001", .upb = 250'000, .rate = 0.065, .score = 740, .ltv = 0.80, .cltv = 0.80},
+      {.id = "L002", .upb = 1'250'000.5, .rate = 0.07125, .score = 700, .ltv = 0.75,
+       .cltv = 0.75, .state = "TX"},
+      {.id = "L003", .upb = 90'000, .rate = 0.05875, .score = kNaN, .ltv = 0.95, .cltv = 0.95,
+       .state = "FL"},
+      {.id = "L004", .upb = 400'000, .rate = 0.06, .score = 790, .ltv = kNaN, .cltv = kNaN},
+  });
   t.problems = {
       {3, "L002", Field::dti, "DTI", "", "DTI not given", false},
       {5, "L\xff\xfe\x1b[31m05", Field::note_rate, "NOTE_RT", "31", "note rate 31% outside 0-25%",

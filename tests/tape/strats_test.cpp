@@ -11,76 +11,12 @@
 #include <vector>
 
 #include "tape/tape.h"
+#include "tests/support/loans.h"
 
 namespace poolbid {
 namespace {
 
-constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-// One loan as a test writes it; rates and ratios are decimals.
-struct TestLoan {
-  std::string id;
-  double upb;
-  double rate;
-  int remaining;
-  int age;
-  double score;
-  double ltv;
-  double cltv;
-  double dti;
-  std::string state;  // "" = not given
-  Occupancy occupancy = Occupancy::owner;
-  Delinquency delinquency = Delinquency::current;
-};
-
-std::uint8_t state_of(const std::string& code) {
-  if (code.empty()) return 0;
-  const std::optional<std::uint8_t> index = state_index(code);
-  EXPECT_TRUE(index) << code;
-  return index.value_or(0);
-}
-
-LoanArrays make_loans(const std::vector<TestLoan>& loans) {
-  LoanArrays a;
-  a.seller_names = {"test seller"};
-  a.arm_index_names = {""};
-  std::uint32_t row = 2;
-  for (const TestLoan& t : loans) {
-    a.loan_id.push_back(t.id);
-    a.row.push_back(row++);
-    a.seller.push_back(0);
-    a.current_balance.push_back(t.upb);
-    a.original_balance.push_back(kNaN);
-    a.note_rate.push_back(t.rate);
-    a.servicing_fee.push_back(0.0025);
-    a.original_term.push_back(360);
-    a.remaining_term.push_back(t.remaining);
-    a.age.push_back(t.age);
-    a.amortization.push_back(Amortization::fixed);
-    a.io_months.push_back(0);
-    a.balloon_month.push_back(0);
-    a.arm_index.push_back(0);
-    a.arm_margin.push_back(kNaN);
-    a.arm_periodic_cap.push_back(kNaN);
-    a.arm_lifetime_cap.push_back(kNaN);
-    a.arm_floor.push_back(kNaN);
-    a.arm_first_reset.push_back(0);
-    a.arm_reset_period.push_back(0);
-    a.credit_score.push_back(t.score);
-    a.original_ltv.push_back(t.ltv);
-    a.combined_ltv.push_back(t.cltv);
-    a.dti.push_back(t.dti);
-    a.property_value.push_back(kNaN);
-    a.property_value_date.push_back(kNoDate);
-    a.occupancy.push_back(t.occupancy);
-    a.property_type.push_back(PropertyType::single_family);
-    a.purpose.push_back(Purpose::purchase);
-    a.documentation.push_back(Documentation::full);
-    a.state.push_back(state_of(t.state));
-    a.delinquency.push_back(t.delinquency);
-  }
-  return a;
-}
+using namespace testing_support;
 
 // Six loans, $1,200,000 in all. Loan C has no credit score, loan D no LTV or CLTV, loan E no DTI.
 // Several sit exactly on a band edge: score 620 and 780, LTV 60.00%, 80.00% and 95.00%,

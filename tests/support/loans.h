@@ -1,0 +1,85 @@
+// Test support: build LoanArrays by hand from a few loans, so a test states only what it varies.
+// Header-only. Every vector of LoanArrays gets one slot per loan.
+#pragma once
+
+#include <gtest/gtest.h>
+
+#include <cstdint>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "tape/tape.h"
+
+namespace poolbid::testing_support {
+
+inline constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// One loan as a test writes it; rates and ratios are decimals, NaN = not given.
+struct TestLoan {
+  std::string id;
+  double upb;
+  double rate;
+  int remaining = 350;
+  int age = 10;
+  double score = 740;
+  double ltv = 0.80;
+  double cltv = 0.80;
+  double dti = 0.36;
+  std::string state = "CA";  // "" = not given
+  Occupancy occupancy = Occupancy::owner;
+  Delinquency delinquency = Delinquency::current;
+};
+
+// Loans in order, tape rows 2, 3, ...; one seller, no ARM index; fixed-rate 30-year loans with a
+// 0.25% servicing fee, full documentation, single-family purchases unless the TestLoan says more.
+inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
+  LoanArrays a;
+  a.seller_names = {"test seller"};
+  a.arm_index_names = {""};
+  std::uint32_t row = 2;
+  for (const TestLoan& t : loans) {
+    a.loan_id.push_back(t.id);
+    a.row.push_back(row++);
+    a.seller.push_back(0);
+    a.current_balance.push_back(t.upb);
+    a.original_balance.push_back(kNaN);
+    a.note_rate.push_back(t.rate);
+    a.servicing_fee.push_back(0.0025);
+    a.original_term.push_back(360);
+    a.remaining_term.push_back(t.remaining);
+    a.age.push_back(t.age);
+    a.amortization.push_back(Amortization::fixed);
+    a.io_months.push_back(0);
+    a.balloon_month.push_back(0);
+    a.arm_index.push_back(0);
+    a.arm_margin.push_back(kNaN);
+    a.arm_periodic_cap.push_back(kNaN);
+    a.arm_lifetime_cap.push_back(kNaN);
+    a.arm_floor.push_back(kNaN);
+    a.arm_first_reset.push_back(0);
+    a.arm_reset_period.push_back(0);
+    a.credit_score.push_back(t.score);
+    a.original_ltv.push_back(t.ltv);
+    a.combined_ltv.push_back(t.cltv);
+    a.dti.push_back(t.dti);
+    a.property_value.push_back(kNaN);
+    a.property_value_date.push_back(kNoDate);
+    a.occupancy.push_back(t.occupancy);
+    a.property_type.push_back(PropertyType::single_family);
+    a.purpose.push_back(Purpose::purchase);
+    a.documentation.push_back(Documentation::full);
+    std::uint8_t state = 0;
+    if (!t.state.empty()) {
+      const std::optional<std::uint8_t> index = state_index(t.state);
+      EXPECT_TRUE(index) << "not a state code: " << t.state;
+      state = index.value_or(0);
+    }
+    a.state.push_back(state);
+    a.delinquency.push_back(t.delinquency);
+  }
+  return a;
+}
+
+}  // namespace poolbid::testing_support
