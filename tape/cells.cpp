@@ -94,8 +94,10 @@ std::optional<Date> parse_cell_date(std::string_view text) {
       value = value * 10 + static_cast<unsigned>(text[i] - '0');
     return value;
   };
-  const Date date{std::chrono::year{static_cast<int>(number(0, 4))},
-                  std::chrono::month{number(5, 2)}, std::chrono::day{number(8, 2)}};
+  const unsigned year = number(0, 4), month = number(5, 2), day = number(8, 2);
+  if (!plausible_date(year, month, day)) return std::nullopt;
+  const Date date{std::chrono::year{static_cast<int>(year)}, std::chrono::month{month},
+                  std::chrono::day{day}};
   if (!date.ok()) return std::nullopt;
   return date;
 }

@@ -31,10 +31,9 @@ std::string shown(const json& value) {
 // A JSON value as written, for "got ..." in a message: strings keep their quotes; long values
 // are cut.
 std::string got(const json& value) {
-  constexpr std::size_t kShown = 60;
-  std::string text = value.dump();
-  if (text.size() > kShown) text = text.substr(0, kShown) + "...";
-  return text;
+  const std::string text = value.dump();
+  const std::string_view shown = detail::utf8_prefix(text, detail::kValueShownBytes);
+  return shown.size() < text.size() ? std::string(shown) + "..." : text;
 }
 
 const json& object_at(const json& parent, const std::string& key, std::string_view source) {
@@ -73,8 +72,7 @@ void read_columns(const json& columns, ColumnMap& map) {
       headers.push_back(string_at(value, key, map.source));
     }
     for (const std::string& header : headers) {
-      std::string folded(detail::trim_spaces(header));
-      for (char& ch : folded) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+      const std::string folded = detail::ascii_lower(detail::trim_spaces(header));
       const auto [it, fresh] = owner.emplace(folded, f);
       if (!fresh && it->second != f)
         bad_map(map.source, key, header,

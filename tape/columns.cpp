@@ -9,16 +9,10 @@
 namespace poolbid::detail {
 namespace {
 
-std::string lower(std::string_view text) {
-  std::string out(text);
-  for (char& ch : out) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
-  return out;
-}
-
 // Positions of the unclaimed header cells equal to `name` (case-insensitive, trimmed).
 std::vector<std::size_t> matching_cells(const std::vector<std::string>& lowered,
                                         const std::vector<bool>& claimed, std::string_view name) {
-  const std::string wanted = lower(trim_spaces(name));
+  const std::string wanted = ascii_lower(trim_spaces(name));
   std::vector<std::size_t> found;
   for (std::size_t i = 0; i < lowered.size(); ++i)
     if (!claimed[i] && lowered[i] == wanted) found.push_back(i);
@@ -48,7 +42,7 @@ ColumnIndex resolve_columns(const std::vector<std::string_view>& header_cells, c
   std::vector<std::string> lowered;
   for (std::string_view cell : header_cells) {
     index.header.emplace_back(trim_spaces(cell));
-    lowered.push_back(lower(index.header.back()));
+    lowered.push_back(ascii_lower(index.header.back()));
   }
   std::vector<bool> claimed(header_cells.size(), false);
 

@@ -19,7 +19,6 @@
 namespace poolbid::detail {
 namespace {
 
-constexpr std::string_view kByteOrderMark = "\xEF\xBB\xBF";
 
 // Comparing a block of bytes at once: bit i of the mask is set where byte i equals `ch`.
 #if defined(__AVX2__)
@@ -177,11 +176,17 @@ std::size_t scan_quoted_field(CsvScanner& s, std::size_t p, std::size_t limit, s
     p = q + 1;
     break;
   }
-  // Text between the closing quote and the next comma is kept, appended literally.
+  // Text between the closing quote and the next comma is kept, appended literally; but when the
+  // quoted text ran over a line end, a quote was likely left open and its "closing" quote is
+  // the opening quote of a cell on a later line: the loans in between would vanish into it.
   const std::size_t t = field_end(s, p, limit);
   if (t == limit && limit < s.text.size()) throw_too_long(s, row);
   const std::size_t tail_end = drop_line_cr(s, p, t);
   if (tail_end > p) {
+    if (std::memchr(base + content_begin, '\n', content_end - content_begin))
+      throw tape_error(ErrorKind::unterminated_quote, s.file, row, "", "",
+                       "a quoted field opened on this row runs into the next row (missing "
+                       "closing quote?)");
     if (!unescaped) {
       unescaped = true;
       scratch_begin = s.scratch.size();

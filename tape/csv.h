@@ -5,6 +5,9 @@
 // - A field that starts with '"' is quoted: it may hold commas, newlines and doubled quotes ("").
 //   Characters after its closing quote up to the next comma or line end are kept literally
 //   ("ab"cd -> abcd), and a '"' inside a field that does not start with one is kept literally.
+//   That leniency holds only for a quoted field on one line: one that spans a line end and has
+//   text after its closing quote is a quote left open, whose "closing" quote opens a cell on a
+//   later line (the rows between would be swallowed), and is an unterminated_quote error.
 // - A UTF-8 byte-order mark at the start of the text is skipped.
 // - Row numbers count records: the first record is row 1 and each record is the next row; a
 //   newline inside a quoted field does not start a new row. A blank line (empty, only "\r", or
@@ -22,6 +25,8 @@
 #include <vector>
 
 namespace poolbid::detail {
+
+inline constexpr std::string_view kByteOrderMark = "\xEF\xBB\xBF";  // UTF-8
 
 struct CsvRecord {
   std::size_t row = 0;                   // tape row number
@@ -58,8 +63,8 @@ CsvScanner start_csv_at(std::string_view text, std::string file, std::size_t max
 
 // Reads the next record into `out`, skipping blank lines; false at the end of the text.
 // Throws TapeError: record_too_long (a record over max_record_bytes, found without reading
-// further than that), unterminated_quote (a quoted field still open at the end of the text;
-// the row is the record's).
+// further than that), unterminated_quote (a quoted field still open at the end of the text, or
+// one that spans a line end with text after its closing quote; the row is the record's).
 bool next_record(CsvScanner& scanner, CsvRecord& out);
 
 // Bytes equal to `ch` in `text` (lines in a file, to size arrays before reading it).

@@ -228,14 +228,20 @@ std::optional<Date> parse_date(std::string_view text) {
   second = text.substr(p1 + 1, p2 - p1 - 1);
   third = text.substr(p2 + 1);
   if (!parse_uint(first, a) || !parse_uint(second, b) || !parse_uint(third, c)) return std::nullopt;
-  Date date;
+  unsigned year = 0, month = 0, day = 0;
   if (sep == '-') {  // ISO 8601: YYYY-MM-DD
     if (first.size() != 4) return std::nullopt;
-    date = Date{std::chrono::year{static_cast<int>(a)}, std::chrono::month{b}, std::chrono::day{c}};
+    year = a, month = b, day = c;
   } else {           // US month/day/year, four-digit year
     if (third.size() != 4) return std::nullopt;
-    date = Date{std::chrono::year{static_cast<int>(c)}, std::chrono::month{a}, std::chrono::day{b}};
+    year = c, month = a, day = b;
   }
+  // Checked as integers first: std::chrono::month and day keep one byte, so month 257 would
+  // become January. Years 1900-2200 hold every date a loan tape carries (originations of the
+  // last century, maturities to 2100 and beyond) and keep month counts between dates small.
+  if (!detail::plausible_date(year, month, day)) return std::nullopt;
+  const Date date{std::chrono::year{static_cast<int>(year)}, std::chrono::month{month},
+                  std::chrono::day{day}};
   if (!date.ok()) return std::nullopt;
   return date;
 }

@@ -6,7 +6,11 @@
 
 #include <algorithm>
 #include <cctype>
+#include <cmath>
+#include <cstring>
 #include <functional>
+#include <limits>
+#include <unordered_map>
 
 #include "tape/fields.h"
 #include "tape/reader.h"
@@ -14,8 +18,6 @@
 namespace poolbid::detail {
 namespace {
 
-constexpr std::size_t kRaggedValueBytes = 60;   // of a row rejected whole, shown as its value
-constexpr std::string_view kByteOrderMark = "\xEF\xBB\xBF";
 constexpr std::size_t kCategoryCacheSize = 64;  // distinct spellings remembered per column
 
 // Loan ids seen so far: open addressing over staging indexes, each slot (hash << 32 | index + 1),
@@ -80,9 +82,46 @@ struct CategoryCache {
 
 constexpr int kUnknownSpelling = -1;
 
+// Seller or ARM index names: each cell's name to its index in the names vector, the index
+// found for the previous cell tried first (a tape lists one seller's loans together).
+struct NameTable {
+  struct Hash {
+    using is_transparent = void;
+    std::size_t operator()(std::string_view name) const {
+      return std::hash<std::string_view>{}(name);
+    }
+  };
+  std::vector<std::string>* names = nullptr;
+  std::unordered_map<std::string, std::size_t, Hash, std::equal_to<>> index;
+  std::size_t last = 0;
+  std::size_t limit = 0;  // names at most
+
+  NameTable(std::vector<std::string>& names_, std::size_t limit_) : names(&names_), limit(limit_) {
+    for (std::size_t i = 0; i < names->size(); ++i) index.emplace((*names)[i], i);
+  }
+};
+
+// Index of `name` in the table's names, added at the end if new; nullopt past its limit.
+std::optional<std::size_t> name_index(NameTable& table, std::string_view name) {
+  std::vector<std::string>& names = *table.names;
+  if (table.last < names.size() && names[table.last] == name) return table.last;
+  if (const auto found = table.index.find(name); found != table.index.end())
+    return table.last = found->second;
+  if (names.size() >= table.limit) return std::nullopt;
+  names.emplace_back(name);
+  table.index.emplace(names.back(), names.size() - 1);
+  return table.last = names.size() - 1;
+}
+
 // The pass's state: what it produces, and what it keeps to produce it.
 struct Reading {
+  explicit Reading(RowsRead&& start)
+      : out(std::move(start)),
+        sellers(out.staging.loans.seller_names, UINT16_MAX + std::size_t{1}),
+        arm_indexes(out.staging.loans.arm_index_names, UINT8_MAX + std::size_t{1}) {}
+
   std::string_view text;
+  std::string_view file;
   const Plan* plan;
   const ColumnIndex* columns;
   RowsRead out;
@@ -90,6 +129,9 @@ struct Reading {
   IdTable ids;
   std::array<CategoryCache, kFieldCount> categories;
   std::vector<std::string> lowered_header;  // header cells, lower case, to spot it repeated
+  NameTable sellers, arm_indexes;
+  bool age_column = false;  // the tape has a loan age or first payment date column
+  std::size_t next_nul = std::string_view::npos;  // offset of the next NUL byte in the text
 };
 
 // What one row has read so far, beyond the staging arrays.
@@ -142,16 +184,6 @@ void store_category(LoanArrays& l, Field f, std::size_t i, std::uint8_t value) {
   }
 }
 
-// Index of `name` in `names`, added at the end if new; nullopt past `limit` names.
-std::optional<std::size_t> name_index(std::vector<std::string>& names, std::string_view name,
-                                      std::size_t limit) {
-  for (std::size_t i = 0; i < names.size(); ++i)
-    if (names[i] == name) return i;
-  if (names.size() >= limit) return std::nullopt;
-  names.emplace_back(name);
-  return names.size() - 1;
-}
-
 // A money, rate, whole-number or score cell (most of a tape's cells: kept small to inline).
 void read_number_cell(Reading& r, RowContext& row, const Step& step, std::string_view cell) {
   const Field f = step.field;
@@ -173,6 +205,9 @@ void read_number_cell(Reading& r, RowContext& row, const Step& step, std::string
     if (step.kind == CellKind::money && text.find_first_of("eE") != std::string_view::npos)
       return reject_cell(r, row, f, cell,
                          "not a number (dollar amounts are not read in exponent notation)");
+    // '$' and '%' belong to dollar amounts and to rates and ratios: "$360" is no term.
+    if (step.kind != CellKind::money && text.find('$') != std::string_view::npos)
+      return reject_cell(r, row, f, cell, "not a number");
     const std::optional<Number> number = parse_number(text);
     if (!number || (number->percent && step.kind != CellKind::rate))
       return reject_cell(r, row, f, cell, "not a number");
@@ -181,6 +216,13 @@ void read_number_cell(Reading& r, RowContext& row, const Step& step, std::string
   }
   LoanArrays& l = r.out.staging.loans;
   const std::size_t i = row.index;
+  if (step.kind == CellKind::whole) {
+    // Month counts are bounded here, before any sum or difference of them can overflow.
+    if (value != std::trunc(value)) return reject_cell(r, row, f, cell, "not a whole number");
+    if (!(value >= 0 && value <= kMaxMonths))
+      return reject_cell(r, row, f, cell,
+                         fmt::format("{} months outside 0-{}", value, kMaxMonths));
+  }
   if (step.kind == CellKind::whole || step.kind == CellKind::score) {
     if (!is_whole_int32(value)) return reject_cell(r, row, f, cell, "not a whole number");
     if (step.kind == CellKind::whole)
@@ -223,14 +265,14 @@ void read_other_cell(Reading& r, RowContext& row, const Step& step, std::string_
       given |= bit(f);
       return;
     case CellKind::seller: {
-      const auto index = name_index(l.seller_names, text, UINT16_MAX + std::size_t{1});
+      const auto index = name_index(r.sellers, text);
       if (!index) return reject_cell(r, row, f, cell, "more than 65,536 sellers on one tape");
       l.seller[i] = static_cast<std::uint16_t>(*index);
       given |= bit(f);
       return;
     }
     case CellKind::arm_index: {
-      const auto index = name_index(l.arm_index_names, text, UINT8_MAX + std::size_t{1});
+      const auto index = name_index(r.arm_indexes, text);
       if (!index) return reject_cell(r, row, f, cell, "more than 255 ARM index names on one tape");
       l.arm_index[i] = static_cast<std::uint8_t>(*index);
       given |= bit(f);
@@ -302,8 +344,7 @@ void derive_terms(Reading& r, RowContext& row) {
       l.age[i] = l.original_term[i] - l.remaining_term[i];
       given |= bit(Field::loan_age);
       r.out.staging.source[i] |= kAgeFromTerms;
-      if (r.columns->has(Field::loan_age) || has_step(*r.plan, Field::first_payment_date))
-        ++r.out.ages_from_terms;
+      if (r.age_column) ++r.out.ages_from_terms;
     }
   }
 }
@@ -317,18 +358,11 @@ void check_duplicate_id(Reading& r, RowContext& row) {
                 fmt::format("duplicate loan id, first at row {}", r.out.staging.loans.row[*first]));
 }
 
-// The first `bytes` of `text`, not cutting a UTF-8 character in two.
-std::string_view utf8_prefix(std::string_view text, std::size_t bytes) {
-  if (text.size() <= bytes) return text;
-  while (bytes > 0 && (static_cast<unsigned char>(text[bytes]) & 0xC0) == 0x80) --bytes;
-  return text.substr(0, bytes);
-}
-
 // A whole-row reject: the row is not staged, and its first bytes stand for its value.
 void reject_whole_row(Reading& r, const CsvRecord& record, std::string_view loan_id,
                       std::string reason) {
   r.out.problems.push_back({record.row, std::string(loan_id), std::nullopt, "",
-                            std::string(utf8_prefix(record.raw, kRaggedValueBytes)),
+                            std::string(utf8_prefix(record.raw, kValueShownBytes)),
                             std::move(reason), true});
   ++r.out.rows_not_staged;
 }
@@ -354,7 +388,7 @@ bool same_as_header_cell(std::string_view cell, std::string_view lowered) {
     if (cell.size() != lowered.size()) return false;
   }
   for (std::size_t i = 0; i < cell.size(); ++i)
-    if (std::tolower(static_cast<unsigned char>(cell[i])) != static_cast<unsigned char>(lowered[i]))
+    if (ascii_lower_char(cell[i]) != lowered[i])
       return false;
   return true;
 }
@@ -381,8 +415,39 @@ void resize_staging(Staging& staging, std::size_t rows) {
   staging.rejected.resize(rows, 0);
 }
 
+// Offset of the first NUL byte in `text` at or after `from`, or npos.
+std::size_t find_nul(std::string_view text, std::size_t from) {
+  if (from >= text.size()) return std::string_view::npos;
+  const void* at = std::memchr(text.data() + from, '\0', text.size() - from);
+  return at ? static_cast<std::size_t>(static_cast<const char*>(at) - text.data())
+            : std::string_view::npos;
+}
+
+// A NUL byte past the start of the file (where one makes the whole file binary): the record
+// holding it is rejected whole, its value cut before the NUL.
+bool reject_if_nul(Reading& r, const CsvRecord& record) {
+  while (r.next_nul < record.offset) r.next_nul = find_nul(r.text, r.next_nul + 1);
+  if (r.next_nul >= record.offset + record.raw.size()) return false;
+  const std::size_t id_column = r.columns->at(Field::loan_id);
+  std::string_view id =
+      id_column < record.fields.size() ? trim_spaces(record.fields[id_column]) : "";
+  if (id.find('\0') != std::string_view::npos) id = "";
+  const std::string_view before_nul = record.raw.substr(0, r.next_nul - record.offset);
+  r.out.problems.push_back({record.row, std::string(id), std::nullopt, "",
+                            std::string(utf8_prefix(before_nul, kValueShownBytes)),
+                            "contains a NUL byte", true});
+  ++r.out.rows_not_staged;
+  return true;
+}
+
 void read_row(Reading& r, const CsvRecord& record) {
+  // Rows are numbered in 32 bits (LoanArrays::row). The tape's size limit is this row count,
+  // reported as record_too_long: the kind for a file larger than poolbid reads.
+  if (record.row > std::numeric_limits<std::uint32_t>::max())
+    throw tape_error(ErrorKind::record_too_long, r.file, 0, "", "",
+                     "more rows than poolbid reads (4,294,967,295)");
   ++r.out.rows_read;
+  if (reject_if_nul(r, record)) return;
   if (record.fields.size() != r.columns->header.size()) return reject_ragged_row(r, record);
   if (repeats_header(r, record))
     return reject_whole_row(r, record, "", "repeats the header row (two tapes pasted together?)");
@@ -407,26 +472,30 @@ void read_row(Reading& r, const CsvRecord& record) {
   check_duplicate_id(r, row);
 }
 
-// A row of n fields takes at least n bytes with its line end; lines bound it too.
+// Rows to size staging for before reading: a row of n fields takes at least n bytes with its
+// line end, and lines bound it too. Capped: a file of blank lines or ragged rows stages nothing,
+// so above the cap staging grows (doubling) with the rows actually staged.
+constexpr std::size_t kMaxRowsSizedUpFront = std::size_t{1} << 16;
 std::size_t estimated_rows(std::string_view text, std::size_t header_fields) {
-  const std::size_t lines = count_byte(text, '\n') + 1;
-  return std::min(lines, text.size() / std::max<std::size_t>(header_fields, 1) + 1);
+  const std::size_t by_size = text.size() / std::max<std::size_t>(header_fields, 1) + 1;
+  if (by_size <= kMaxRowsSizedUpFront) return std::min(by_size, count_byte(text, '\n') + 1);
+  return kMaxRowsSizedUpFront;
 }
 
 }  // namespace
 
 RowsRead read_rows(CsvScanner& scanner, const Plan& plan, const ColumnIndex& columns) {
-  Reading r;
+  RowsRead start;
+  start.staging.loans.seller_names = {plan.default_seller};
+  start.staging.loans.arm_index_names = {""};
+  Reading r(std::move(start));
   r.text = scanner.text;
+  r.file = scanner.file;
   r.plan = &plan;
   r.columns = &columns;
-  r.out.staging.loans.seller_names = {plan.default_seller};
-  r.out.staging.loans.arm_index_names = {""};
-  for (const std::string& cell : columns.header) {
-    std::string lowered = cell;
-    for (char& ch : lowered) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
-    r.lowered_header.push_back(std::move(lowered));
-  }
+  r.next_nul = find_nul(r.text, scanner.pos);
+  r.age_column = columns.has(Field::loan_age) || has_step(plan, Field::first_payment_date);
+  for (const std::string& cell : columns.header) r.lowered_header.push_back(ascii_lower(cell));
   const std::size_t expected_rows = estimated_rows(scanner.text, columns.header.size());
   resize_staging(r.out.staging, expected_rows);
   size_id_table(r.ids, expected_rows);

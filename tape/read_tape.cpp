@@ -23,6 +23,8 @@ namespace {
 using namespace detail;
 
 constexpr std::size_t kBinaryProbeBytes = 64 * 1024;  // NUL bytes here: not a text file
+// A pipe or device read past this is not a tape (the largest tapes are a few GiB).
+constexpr std::size_t kMaxStreamBytes = std::size_t{64} << 30;
 
 // Options that cannot be used. Messages name the command-line option where there is one; the
 // error's column stays empty: the fault is not in a column of the tape.
@@ -243,11 +245,21 @@ struct FileBytes {
                    fmt::format("{}: {}", what, std::generic_category().message(error)));
 }
 
-// Reads what is left of `fd` into `bytes`, growing the buffer as needed.
+[[noreturn]] void throw_binary(const std::string& path) {
+  throw tape_error(ErrorKind::binary, path, 0, "", "",
+                   "not a text file (NUL bytes near the start: a spreadsheet or UTF-16 file?)");
+}
+
+// Reads what is left of `fd` into `bytes`, growing the buffer as needed. A stream that is not a
+// tape (a device such as /dev/zero) is stopped early: NUL bytes in its first kBinaryProbeBytes
+// are checked as they arrive, and no more than kMaxStreamBytes are read.
 void read_to_end(int fd, const std::string& path, std::size_t expected, FileBytes& bytes) {
   std::size_t capacity = std::max<std::size_t>(expected + 1, std::size_t{1} << 16);
   bytes.owned = std::make_unique_for_overwrite<char[]>(capacity);
   for (;;) {
+    if (bytes.size >= kMaxStreamBytes)
+      throw tape_error(ErrorKind::record_too_long, path, 0, "", "",
+                       "more than 64 GiB read without an end: not a tape poolbid can read");
     if (bytes.size == capacity) {
       auto larger = std::make_unique_for_overwrite<char[]>(capacity * 2);
       std::memcpy(larger.get(), bytes.owned.get(), bytes.size);
@@ -258,7 +270,12 @@ void read_to_end(int fd, const std::string& path, std::size_t expected, FileByte
     if (n < 0 && errno == EINTR) continue;
     if (n < 0) throw_cannot_open(path, "cannot read", errno);
     if (n == 0) break;
+    const std::size_t before = bytes.size;
     bytes.size += static_cast<std::size_t>(n);
+    if (before < kBinaryProbeBytes &&
+        std::memchr(bytes.owned.get() + before, '\0',
+                    std::min(bytes.size, kBinaryProbeBytes) - before))
+      throw_binary(path);
   }
   bytes.data = bytes.owned.get();
 }
@@ -294,8 +311,7 @@ TapeRead read_tape_text(std::string_view text, std::string_view name, const Read
   check_options(options, file);
   if (text.empty()) throw tape_error(ErrorKind::empty, file, 0, "", "", "the file is empty");
   if (std::memchr(text.data(), '\0', std::min(text.size(), kBinaryProbeBytes)))
-    throw tape_error(ErrorKind::binary, file, 0, "", "",
-                     "not a text file (NUL bytes near the start: a spreadsheet or UTF-16 file?)");
+    throw_binary(file);
   CsvScanner scanner = start_csv(text, file, options.max_record_bytes);
   CsvRecord header;
   if (!read_header(scanner, header, file))

@@ -30,6 +30,26 @@ inline std::string_view trim_spaces(std::string_view text) {
   return text;
 }
 
+// ASCII letters lower-cased, other bytes as they are (header names compare ignoring case).
+inline char ascii_lower_char(char ch) {
+  return ch >= 'A' && ch <= 'Z' ? static_cast<char>(ch - 'A' + 'a') : ch;
+}
+inline std::string ascii_lower(std::string_view text) {
+  std::string out(text);
+  for (char& ch : out) ch = ascii_lower_char(ch);
+  return out;
+}
+
+// Long values (a whole row, a runaway field) are shown cut to this many bytes in messages.
+inline constexpr std::size_t kValueShownBytes = 60;
+
+// The first `bytes` of `text`, not cutting a UTF-8 character in two (a long value shown cut).
+inline std::string_view utf8_prefix(std::string_view text, std::size_t bytes) {
+  if (text.size() <= bytes) return text;
+  while (bytes > 0 && (static_cast<unsigned char>(text[bytes]) & 0xC0) == 0x80) --bytes;
+  return text.substr(0, bytes);
+}
+
 struct Number {
   double value;
   bool percent;  // written with a trailing '%': value is already divided by 100
@@ -72,6 +92,15 @@ inline bool is_whole_int32(double value) {
          value <= std::numeric_limits<std::int32_t>::max();
 }
 
+// Dates poolbid reads: years 1900-2200, months 1-12, days 1-31, checked as integers before a
+// Date is built (std::chrono::month and day hold one byte: 257 would wrap to 1). Whether the day
+// exists in its month is Date::ok()'s to say.
+inline constexpr unsigned kFirstYear = 1900, kLastYear = 2200;
+inline bool plausible_date(unsigned year, unsigned month, unsigned day) {
+  return year >= kFirstYear && year <= kLastYear && month >= 1 && month <= 12 && day >= 1 &&
+         day <= 31;
+}
+
 // parse_date, with the common YYYY-MM-DD shape read directly.
 std::optional<Date> parse_cell_date(std::string_view text);
 
@@ -85,6 +114,11 @@ int months_to_maturity(Date cutoff, Date maturity);
 
 // Days since 1970-01-01.
 std::int32_t days_since_epoch(Date date);
+
+// Month cells (terms, ages, interest-only and balloon months, ARM reset months) outside
+// 0..kMaxMonths are rejected as read: no loan runs 100 years, and sums and differences of
+// months then stay far inside an int.
+inline constexpr int kMaxMonths = 1200;
 
 // Balances (dollars): above the first a cell is not a residential loan balance (rejected, and
 // left out of TapeRead::upb_rejected); above the second the loan is checked by hand (a warning).

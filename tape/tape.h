@@ -38,7 +38,8 @@ inline constexpr std::size_t kFieldCount = static_cast<std::size_t>(Field::count
 std::string_view field_name(Field f);                  // "current_balance"
 std::optional<Field> field_from_name(std::string_view name);  // exact canonical name
 
-// A date written ISO (2026-03-01) or month/day/year (3/1/2026); nullopt if neither or invalid.
+// A date written ISO (2026-03-01) or month/day/year (3/1/2026) with a year from 1900 to 2200;
+// nullopt if neither, or not a day of the calendar (month 13, 2024-02-30, day 257).
 std::optional<Date> parse_date(std::string_view text);
 
 // How a rate or ratio column is written on the tape.
@@ -73,7 +74,7 @@ inline constexpr std::int32_t kNoDate = INT32_MIN;  // days since 1970-01-01 oth
 struct LoanArrays {
   // Identity.
   std::vector<std::string> loan_id;
-  std::vector<std::uint32_t> row;           // tape row number (header = row 1)
+  std::vector<std::uint32_t> row;           // tape row number (header: row 1, unless after blanks)
   std::vector<std::uint16_t> seller;        // index into seller_names
   std::vector<std::string> seller_names;
 
@@ -141,11 +142,14 @@ ColumnMap parse_column_map(std::string_view json_text, std::string_view source_n
 enum class ErrorKind : std::uint8_t {
   cannot_open,        // missing, unreadable, a directory
   empty,              // zero bytes (or only a byte-order mark / blank lines)
-  binary,             // NUL bytes or not text
+  binary,             // NUL bytes in the first 64 KiB or the header (a later one rejects its row)
   no_data_rows,       // a header and nothing else
   wrong_delimiter,    // header has one column but ';', tab or '|' in it
-  record_too_long,    // one row larger than ReadOptions::max_record_bytes
-  unterminated_quote, // a quoted field still open at end of file
+  record_too_long,    // one row larger than ReadOptions::max_record_bytes; also a tape past
+                      // what poolbid reads at all (rows numbered past 4,294,967,295, or over
+                      // 64 GiB from a pipe or device)
+  unterminated_quote, // a quoted field still open at end of file, or one spanning lines with
+                      // text after its closing quote (a quote left open swallowing rows)
   missing_column,     // a required field has no column and no default
   duplicate_column,   // two header cells resolve to the same field
   bad_map,            // column map file unreadable or invalid
@@ -175,7 +179,7 @@ struct ReadOptions {
 // One problem on one row. A rejected row has one or more with `reject` set; warnings only never
 // reject a row. `column` is the tape's header; `field` the canonical name it maps to.
 struct RowProblem {
-  std::size_t row;          // tape row number (header = row 1)
+  std::size_t row;          // tape row number (header: row 1, unless after blank lines)
   std::string loan_id;      // as read, may be empty
   std::optional<Field> field;
   std::string column;       // header cell, "" for a whole-row problem (ragged row)

@@ -126,6 +126,28 @@ TEST(Csv, TextAfterClosingQuoteIsAppended) {
   EXPECT_EQ(s.fields[0], (Fields{"abcd", "x\"yz"}));
 }
 
+// A quoted field over several lines with text after its closing quote is a quote left open:
+// its "closing" quote opens a cell rows later, and the loans between would vanish into it.
+TEST(Csv, MultiLineQuotedFieldWithTextAfterItsCloseIsAnOpenQuote) {
+  try {
+    scan("id,notes\nA5,\"Smith, John\nA6,\"Doe Jane\"\nA7,ok\n");
+    FAIL() << "expected unterminated_quote";
+  } catch (const TapeError& e) {
+    EXPECT_EQ(e.kind, ErrorKind::unterminated_quote);
+    EXPECT_EQ(e.row, 2u);
+    EXPECT_NE(std::string(e.what()).find("runs into the next row (missing closing quote?)"),
+              std::string::npos)
+        << e.what();
+  }
+  // The same after a CRLF: the CR before the line end is no text after the quote.
+  const Scanned crlf = scan("id,notes\r\nA5,\"two\r\nlines\"\r\nA6,x\r\n");
+  ASSERT_EQ(crlf.fields.size(), 3u);
+  EXPECT_EQ(crlf.fields[1], (Fields{"A5", "two\r\nlines"}));
+  // On one line the text after the closing quote is still appended.
+  const Scanned one_line = scan("id,notes\nA5,\"Smith\" Jr\nA6,x\n");
+  EXPECT_EQ(one_line.fields[1], (Fields{"A5", "Smith Jr"}));
+}
+
 TEST(Csv, SpacesAroundFieldsAreKept) {
   // source: RFC 4180 section 2, rule 4 (spaces are part of a field)
   const Scanned s = scan(" a , b \n");

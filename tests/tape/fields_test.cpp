@@ -51,6 +51,18 @@ TEST(ParseDate, Rejects) {
   EXPECT_FALSE(parse_date("2026/03/01"));  // slashes mean month/day/year
   EXPECT_FALSE(parse_date("March 1, 2026"));
   EXPECT_FALSE(parse_date("2026-03-01x"));
+  // std::chrono::month and day hold one byte: 257 must not wrap to 1.
+  EXPECT_FALSE(parse_date("257/1/2056"));
+  EXPECT_FALSE(parse_date("1/257/2026"));
+  EXPECT_FALSE(parse_date("2056-259-01"));
+  EXPECT_FALSE(parse_date("2026-01-257"));
+  EXPECT_FALSE(parse_date("4294967297/1/2026"));
+  // Years 1900-2200 only.
+  EXPECT_FALSE(parse_date("1899-12-31"));
+  EXPECT_FALSE(parse_date("2201-01-01"));
+  EXPECT_FALSE(parse_date("1/1/9999"));
+  EXPECT_TRUE(parse_date("1900-01-01"));
+  EXPECT_TRUE(parse_date("12/31/2200"));
   // source: Gregorian calendar leap-year rule (2024 is a leap year, 2025 is not)
   EXPECT_TRUE(parse_date("2/29/2024"));
   EXPECT_FALSE(parse_date("2/29/2025"));

@@ -146,6 +146,13 @@ const std::vector<Case>& corpus_table() {
       // closing quote).
       file_case("unterminated-quote.csv", kUnusableTape,
                 {ErrorKind::unterminated_quote, 4, "", "never closed"}),
+      // L003's state cell opens a quote that never closes; L005's quoted state cell "closes"
+      // it, so L004 and L005 would vanish into one cell. A quoted field spanning lines with
+      // text after its closing quote is a quote left open, named on the row it opened.
+      file_case("quote-swallows-rows.csv", kUnusableTape,
+                {ErrorKind::unterminated_quote, 4, "",
+                 "a quoted field opened on this row runs into the next row (missing closing "
+                 "quote?)"}),
       file_case("missing-loan-id-column.csv", kUnusableTape,
                 {ErrorKind::missing_column, 0, "", "no column for loan_id"}),
       file_case("missing-remaining-term-column.csv", kUnusableTape,
@@ -208,11 +215,19 @@ const std::vector<Case>& corpus_table() {
                {4, "", "loan_id", "", true, "required field missing"}),
       row_case("fractional-term.csv", kRowsRejected,
                {4, "L003", "original_term", "360.5", true, "not a whole number"}),
+      // Month counts are bounded as read (0-1200), before any sum or difference overflows.
+      row_case("term-overflow.csv", kRowsRejected,
+               {4, "L003", "original_term", "2147483647", true,
+                "2147483647 months outside 0-1200"}),
+      // '$' belongs to dollar amounts only.
+      row_case("dollar-in-term.csv", kRowsRejected,
+               {4, "L003", "original_term", "$360", true, "not a number"}),
       row_case("remaining-over-original.csv", kRowsRejected,
                {4, "L003", "remaining_term", "372", true, "above the original term 360"}),
       row_case("remaining-zero.csv", kRowsRejected,
                {4, "L003", "remaining_term", "0", true, "remaining term 0 months not above 0"}),
-      row_case("negative-age.csv", kRowsRejected, {4, "L003", "loan_age", "-30", true, "below 0"}),
+      row_case("negative-age.csv", kRowsRejected,
+               {4, "L003", "loan_age", "-30", true, "-30 months outside 0-1200"}),
       row_case("ltv-too-high.csv", kRowsRejected,
                {4, "L003", "original_ltv", "900", true, "original LTV 900% outside 1-300%"}),
       // 0.9 in a column of percent reads as 0.9%, below any first lien's LTV.
@@ -261,6 +276,9 @@ const std::vector<Case>& corpus_table() {
                 "ARM first reset month 420 beyond the original term 360"}),
       row_case("bad-date.csv", kRowsRejected,
                {4, "L003", "property_value_date", "2024-02-30", true, "not a date"}),
+      // Day 257 is no day (std::chrono::day keeps one byte: it must not become day 1).
+      row_case("date-day-257.csv", kRowsRejected,
+               {4, "L003", "property_value_date", "5/257/2024", true, "not a date"}),
       row_case("duplicate-loan-id.csv", kRowsRejected,
                {5, "L002", "loan_id", "L002", true, "duplicate loan id, first at row 3"}),
       // A whole-row problem shows the row's first 60 bytes as its value.

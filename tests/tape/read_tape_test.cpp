@@ -466,7 +466,41 @@ TEST(Rejects, RemainingTermAboveOriginal) {
 }
 
 TEST(Rejects, AgeBelowZero) {
-  expect_reject(read_second_row({{"loan_age", "-1"}}), 3, "loan_age", "-1", "below 0");
+  expect_reject(read_second_row({{"loan_age", "-1"}}), 3, "loan_age", "-1",
+                "-1 months outside 0-1200");
+}
+
+// Month cells are bounded as read, so no sum or difference of them can overflow an int:
+// 2147483647 - (-1) would, and age + remaining would too. One problem per cell.
+TEST(Rejects, MonthCellsOutside0To1200) {
+  struct Case {
+    std::string column, value, reason;
+  };
+  const std::vector<Case> cases = {
+      {"original_term", "1201", "1201 months outside 0-1200"},
+      {"original_term", "2147483647", "2147483647 months outside 0-1200"},
+      {"remaining_term", "-1", "-1 months outside 0-1200"},
+      {"remaining_term", "99999999999", "99999999999 months outside 0-1200"},
+      {"loan_age", "2147483647", "2147483647 months outside 0-1200"},
+      {"io_months", "5000", "5000 months outside 0-1200"},
+      {"balloon_month", "-360", "-360 months outside 0-1200"},
+  };
+  for (const Case& c : cases) {
+    SCOPED_TRACE(c.column + " " + c.value);
+    const TapeRead t = read_second_row({{c.column, c.value}});
+    ASSERT_EQ(t.problems.size(), 1u) << t.problems.back().reason;
+    expect_reject(t, 3, c.column, c.value, c.reason);
+  }
+  // Both terms out of range: a problem on each cell, no age derived from them.
+  const TapeRead both = read_second_row(
+      {{"original_term", "2147483647"}, {"remaining_term", "-1"}, {"loan_age", ""}});
+  ASSERT_EQ(both.problems.size(), 2u);
+  EXPECT_EQ(both.problems[0].column, "original_term");
+  EXPECT_EQ(both.problems[1].column, "remaining_term");
+  // 1200 is a month count poolbid reads (and then checks against the other terms).
+  const TapeRead edge = read_second_row(
+      {{"original_term", "1200"}, {"remaining_term", "1200"}, {"loan_age", "0"}});
+  for (const RowProblem& p : edge.problems) EXPECT_EQ(p.reason.find("0-1200"), std::string::npos);
 }
 
 TEST(Rejects, OriginalLtvOutside1To300Percent) {
@@ -602,7 +636,7 @@ TEST(Rejects, ArmTermsOutOfRange) {
       {"arm_floor", "7", "ARM floor 7% above the note rate 6.5%"},
       {"arm_lifetime_cap", "6", "ARM lifetime cap 6% below the note rate 6.5%"},
       {"arm_first_reset", "0", "ARM first reset month 0 not above 0"},
-      {"arm_first_reset", "-12", "ARM first reset month -12 not above 0"},
+      {"arm_first_reset", "-12", "-12 months outside 0-1200"},
       {"arm_first_reset", "361", "ARM first reset month 361 beyond the original term 360"},
       {"arm_reset_period", "0", "ARM reset period 0 months not above 0"},
       {"arm_reset_period", "121", "ARM reset period 121 months above 120"},
@@ -931,6 +965,18 @@ TEST(Numbers, ExponentInADollarAmountIsNotANumber) {
   }
 }
 
+TEST(Numbers, DollarSignOnlyInDollarAmounts) {
+  // '$' belongs to balances and property values; on a term, rate, score or ratio it is a
+  // cell from the wrong column, not a number.
+  const std::vector<std::pair<std::string, std::string>> cells = {
+      {"original_term", "$360"}, {"note_rate", "$6.5"},   {"credit_score", "$740"},
+      {"original_ltv", "$80"},   {"dti", "-$36"},         {"servicing_fee", "$0.25%"}};
+  for (const auto& [column, cell] : cells) {
+    SCOPED_TRACE(column);
+    expect_reject(read_second_row({{column, cell}}), 3, column, cell, "not a number");
+  }
+}
+
 TEST(Numbers, ParseNumberForms) {
   using detail::parse_number;
   EXPECT_DOUBLE_EQ(parse_number("250,000.00")->value, 250000);
@@ -991,6 +1037,29 @@ TEST(Dates, ProblemOnADerivedTermPointsAtTheDateCell) {
       make_tape({{{"maturity_date", "2055-11-01"}}, {{"maturity_date", "2060-01-01"}}}, header),
       with_cutoff(2026, 12, 1));
   expect_reject(t, 3, "maturity_date", "2060-01-01", "above the original term 360");
+}
+
+// Months and days above 255 would wrap in std::chrono (257 -> 1): they are not dates.
+TEST(Dates, MonthOrDayAbove255IsNotADate) {
+  std::vector<std::string> header = without(kFullHeader, {"remaining_term", "loan_age"});
+  header.push_back("maturity_date");
+  header.push_back("first_payment_date");
+  const ReadOptions options = with_cutoff(2026, 12, 1);
+  const Cells good = {{"maturity_date", "2056-11-01"}, {"first_payment_date", "2026-01-01"}};
+  expect_reject(read(make_tape({good, {{"maturity_date", "257/1/2056"},
+                                       {"first_payment_date", "2026-01-01"}}},
+                               header),
+                     options),
+                3, "maturity_date", "257/1/2056", "not a date");
+  expect_reject(read(make_tape({good, {{"maturity_date", "2056-11-01"},
+                                       {"first_payment_date", "1/257/2026"}}},
+                               header),
+                     options),
+                3, "first_payment_date", "1/257/2026", "not a date");
+  expect_reject(read_second_row({{"property_value_date", "2025-259-01"}}), 3,
+                "property_value_date", "2025-259-01", "not a date");
+  expect_reject(read_second_row({{"property_value_date", "1776-07-04"}}), 3,
+                "property_value_date", "1776-07-04", "not a date");
 }
 
 TEST(Dates, BadMaturityDate) {
@@ -1259,6 +1328,49 @@ TEST(Unusable, Binary) {
   header += std::string(70000, 'x');
   header += std::string(1, '\0');
   EXPECT_EQ(read_error(header + "\n1\n").kind, ErrorKind::binary);
+}
+
+// Past the first 64 KiB a NUL byte is one row's fault, not the file's: that row is rejected.
+TEST(Rows, NulByteAfterTheFirst64KiBRejectsItsRow) {
+  std::vector<Cells> rows(900);
+  rows[800] = {{"seller", std::string("Quill\0moor", 10)}};
+  const std::string text = make_tape(rows);
+  ASSERT_GT(text.find('\0'), std::size_t{64 * 1024});
+  const TapeRead t = read(text);
+  EXPECT_EQ(t.rows_read, 900u);
+  EXPECT_EQ(t.rows_rejected, 1u);
+  ASSERT_EQ(t.problems.size(), 1u);
+  const RowProblem& p = t.problems[0];
+  EXPECT_EQ(p.row, 802u);
+  EXPECT_EQ(p.loan_id, "L801");
+  EXPECT_TRUE(p.reject);
+  EXPECT_EQ(p.reason, "contains a NUL byte");
+  EXPECT_EQ(p.value.find('\0'), std::string::npos);  // shown up to the NUL
+  EXPECT_EQ(std::count(t.loans.loan_id.begin(), t.loans.loan_id.end(), "L801"), 0);
+}
+
+// Seller names are looked up, not scanned: many sellers, in runs and interleaved, each keep
+// their own index, in first-seen order.
+TEST(Rows, ManySellersKeepTheirNames) {
+  std::vector<Cells> rows;
+  for (int i = 0; i < 3000; ++i)
+    rows.push_back({{"seller", "Seller " + std::to_string((i / 3) % 700)}});
+  rows.push_back({{"seller", "Seller 5"}});
+  const TapeRead t = read(make_tape(rows));
+  ASSERT_EQ(t.rows_accepted(), rows.size());
+  EXPECT_EQ(t.loans.seller_names.size(), 700u);
+  for (std::size_t i = 0; i < rows.size(); ++i)
+    ASSERT_EQ(t.loans.seller_names[t.loans.seller[i]], rows[i]["seller"]) << i;
+}
+
+// A device that never ends (/dev/zero) is read as a stream: its first bytes say binary.
+TEST(Unusable, DeviceOfZerosIsBinaryNotReadForever) {
+  try {
+    read_tape("/dev/zero");
+    FAIL() << "expected binary";
+  } catch (const TapeError& e) {
+    EXPECT_EQ(e.kind, ErrorKind::binary);
+  }
 }
 
 TEST(Unusable, NoDataRows) {
