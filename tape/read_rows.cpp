@@ -440,6 +440,17 @@ bool reject_if_nul(Reading& r, const CsvRecord& record) {
   return true;
 }
 
+// Staging is full: grow it to the rows the whole text will hold at the rate rows have come so
+// far (one step for an even tape), and by half at least. Bounded like estimated_rows: a staged
+// row takes at least as many bytes as the header has fields.
+std::size_t rows_to_stage(const Reading& r, const CsvRecord& record) {
+  const double bytes_so_far = static_cast<double>(record.offset + record.raw.size()) + 1;
+  const double rows_per_byte = static_cast<double>(r.staged) / bytes_so_far;
+  const auto projected =
+      static_cast<std::size_t>(rows_per_byte * static_cast<double>(r.text.size()) * 1.02);
+  return std::max({std::size_t{1024}, r.staged + r.staged / 2, projected});
+}
+
 void read_row(Reading& r, const CsvRecord& record) {
   // Rows are numbered in 32 bits (LoanArrays::row). The tape's size limit is this row count,
   // reported as record_too_long: the kind for a file larger than poolbid reads.
@@ -451,8 +462,11 @@ void read_row(Reading& r, const CsvRecord& record) {
   if (record.fields.size() != r.columns->header.size()) return reject_ragged_row(r, record);
   if (repeats_header(r, record))
     return reject_whole_row(r, record, "", "repeats the header row (two tapes pasted together?)");
-  if (r.staged == r.out.staging.offset.size())
-    resize_staging(r.out.staging, std::max<std::size_t>(1024, 2 * r.staged));
+  if (r.staged == r.out.staging.offset.size()) {
+    const std::size_t rows = rows_to_stage(r, record);
+    resize_staging(r.out.staging, rows);
+    size_id_table(r.ids, rows);
+  }
   RowContext row{&record, r.staged++};
   r.out.staging.offset[row.index] = record.offset;
   r.out.staging.loans.row[row.index] = static_cast<std::uint32_t>(record.row);
