@@ -121,7 +121,7 @@ int finish_tape_command(const TapeRead& tape, const std::string& document) {
 }
 
 int run(int argc, char** argv) {
-  CLI::App app{"poolbid: check a residential loan tape, stratify it, and (in time) bid for it.\n"
+  CLI::App app{"poolbid: check and stratify a residential mortgage loan tape.\n"
                "Results are estimates under stated assumptions, not investment advice."};
   app.require_subcommand(1);
   app.set_version_flag("--version", "poolbid 0.1.0");

@@ -109,7 +109,7 @@ constexpr std::array<PropertyType, 6> kPropertyTypes = {
 constexpr std::array<int, 6> kPropertyTypeWeights = {62, 20, 10, 5, 2, 1};
 
 // Underwriting of one profile: clipped normals and category mixes (percent).
-struct CreditBox {
+struct UnderwritingMix {
   double score_mean, score_sd, score_low, score_high;
   double ltv_mean, ltv_sd, ltv_low, ltv_high;     // percent
   double second_lien_chance, cltv_high;           // CLTV above LTV for this share, up to cltv_high
@@ -120,7 +120,7 @@ struct CreditBox {
   std::array<int, 5> delinquency;                 // per 1000: current, 30, 60, 90+, foreclosure
 };
 
-constexpr CreditBox kStrict = {
+constexpr UnderwritingMix kStrict = {
     765, 30, 680, 840,
     70, 12, 20, 90,
     0.08, 95,
@@ -130,7 +130,7 @@ constexpr CreditBox kStrict = {
     {55, 30, 15},
     {993, 5, 1, 1, 0}};
 
-constexpr CreditBox kLoose = {
+constexpr UnderwritingMix kLoose = {
     690, 45, 560, 820,
     85, 10, 30, 100,
     0.20, 100,
@@ -270,7 +270,7 @@ void draw_deal(Stream& deal, const GrowthTable& growth, DemoLoan& loan) {
   }
 }
 
-void draw_credit(Stream& credit, const CreditBox& box, DemoLoan& loan) {
+void draw_credit(Stream& credit, const UnderwritingMix& box, DemoLoan& loan) {
   loan.credit_score = static_cast<int>(std::lround(
       credit.normal(box.score_mean, box.score_sd, box.score_low, box.score_high)));
   const double ltv = credit.normal(box.ltv_mean, box.ltv_sd, box.ltv_low, box.ltv_high);
@@ -658,7 +658,7 @@ void write_demo_tape(std::ostream& out, const DemoTapeOptions& options) {
   const bool strict = options.profile == DemoProfile::strict;
   Stream deal(mix64(options.seed));
   Stream credit(mix64(mix64(options.seed) + 1 + static_cast<std::uint64_t>(options.profile)));
-  const CreditBox& box = strict ? kStrict : kLoose;
+  const UnderwritingMix& box = strict ? kStrict : kLoose;
 
   Writer w;
   w.seller_coded = options.layout == DemoLayout::seller_coded;
