@@ -35,7 +35,8 @@ CellKind kind_of(Field f) {
   }
 }
 
-// The LoanArrays vector a numeric field is read into.
+}  // namespace
+
 std::vector<double> LoanArrays::*double_vector(Field f) {
   switch (f) {
     case Field::current_balance: return &LoanArrays::current_balance;
@@ -53,6 +54,8 @@ std::vector<double> LoanArrays::*double_vector(Field f) {
     default: return &LoanArrays::credit_score;
   }
 }
+
+namespace {
 
 std::vector<std::int32_t> LoanArrays::*int_vector(Field f) {
   switch (f) {

@@ -269,6 +269,10 @@ Plan make_plan(const ColumnIndex& columns, const ReadOptions& options, std::stri
 
 bool has_step(const Plan& plan, Field f);
 
+// The LoanArrays vector a rate, ratio, dollar or score field is read into (credit_score for any
+// field that has none).
+std::vector<double> LoanArrays::*double_vector(Field f);
+
 // state_index through the plan's table; 0 if not a state code.
 std::uint8_t state_of(const Plan& plan, std::string_view code);
 

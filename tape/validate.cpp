@@ -42,17 +42,7 @@ std::string_view rate_name(Field f) {
 }
 
 double rate_value(const LoanArrays& l, Field f, std::size_t i) {
-  switch (f) {
-    case Field::note_rate: return l.note_rate[i];
-    case Field::servicing_fee: return l.servicing_fee[i];
-    case Field::arm_margin: return l.arm_margin[i];
-    case Field::arm_periodic_cap: return l.arm_periodic_cap[i];
-    case Field::arm_lifetime_cap: return l.arm_lifetime_cap[i];
-    case Field::arm_floor: return l.arm_floor[i];
-    case Field::original_ltv: return l.original_ltv[i];
-    case Field::combined_ltv: return l.combined_ltv[i];
-    default: return l.dti[i];
-  }
+  return (l.*double_vector(f))[i];
 }
 
 // One staged row under check: its values, and the problems found so far.

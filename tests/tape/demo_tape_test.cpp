@@ -24,29 +24,16 @@ const std::string kDemoPools = std::string(POOLBID_SOURCE_DIR) + "/demo-pools/";
 // The committed demo files and the options that write them (demo-pools/README.md has the same
 // commands).
 DemoTapeOptions brindlecote_options() {
-  DemoTapeOptions o;
-  o.loans = 2000;
-  o.profile = DemoProfile::strict;
-  o.layout = DemoLayout::canonical;
-  o.seed = 2026;
-  return o;
+  return {.loans = 2000, .profile = DemoProfile::strict, .seed = 2026,
+          .layout = DemoLayout::canonical};
 }
 DemoTapeOptions sallowmere_options() {
-  DemoTapeOptions o;
-  o.loans = 2000;
-  o.profile = DemoProfile::loose;
-  o.layout = DemoLayout::seller_coded;
-  o.seed = 2026;
-  return o;
+  return {.loans = 2000, .profile = DemoProfile::loose, .seed = 2026,
+          .layout = DemoLayout::seller_coded};
 }
 DemoTapeOptions bad_tape_options() {
-  DemoTapeOptions o;
-  o.loans = 40;
-  o.profile = DemoProfile::strict;
-  o.layout = DemoLayout::canonical;
-  o.seed = 7;
-  o.bad_rows = 14;
-  return o;
+  return {.loans = 40, .profile = DemoProfile::strict, .seed = 7,
+          .layout = DemoLayout::canonical, .bad_rows = 14};
 }
 
 std::string demo_text(const DemoTapeOptions& options) {
