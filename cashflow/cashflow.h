@@ -1,0 +1,84 @@
+// Cash-flow projection: every loan's monthly flows under the assumption curves (DESIGN.md section 4),
+// summed to a pool table in a fixed order, so results are bit-identical for any thread count.
+// Loans are read as structure-of-arrays and projected in blocks: months outer, loans inner.
+// project_pool is safe to call from several threads at once; it starts its own worker threads.
+#pragma once
+
+#include <cstdint>
+#include <span>
+#include <vector>
+
+#include "curves/curves.h"
+#include "tape/tape.h"
+
+namespace poolbid {
+
+// Note rates for loans whose coupon changes (ARMs), by projection month. A loan not listed keeps
+// its note rate. The level payment re-amortises whenever a listed loan's rate changes.
+struct CouponPaths {
+  int months = 0;                     // projection months given; later months keep the last rate
+  std::vector<std::uint32_t> loans;   // loan indexes into LoanArrays, strictly ascending
+  std::vector<Rate> rates;            // rates[k * months + (t - 1)]: k-th listed loan, month t
+};
+
+struct ProjectionOptions {
+  // Worker threads; 0 = every core. Results do not depend on it.
+  unsigned threads = 0;
+  // Fill Projection::loans with one row of lifetime totals per loan. Costs memory and ~20% time.
+  bool loan_totals = false;
+  // Discount factor for the cash of each projection month (index t = month t; [0] unused). If
+  // given and loan_totals is set, each loan's present value is filled. Months beyond the vector
+  // are an error (std::invalid_argument).
+  std::span<const double> discount;
+  // Coupon paths for rate-changing loans; null = every loan keeps its note rate.
+  const CouponPaths* coupons = nullptr;
+};
+
+// The pool by month. Vectors have `months` entries, [0] = month 1. Dollars unless noted.
+struct PoolFlows {
+  int months = 0;                      // through the last month with any cash or liquidation
+  double cutoff_balance = 0;           // sum of current balances projected
+  std::vector<double> begin_balance;   // performing balance at the start of the month
+  std::vector<double> sched_principal;
+  std::vector<double> prepayment;
+  std::vector<double> defaults;        // balance defaulting this month (leaves begin_balance)
+  std::vector<double> loss;            // liquidated this month: defaulted balance not recovered
+  std::vector<double> recovery;        // liquidated this month: cash recovered
+  std::vector<double> gross_interest;  // note rate on the performing balance
+  std::vector<double> servicing;       // servicing fee on the performing balance
+  // Net interest paid to the investor: borrowers' (gross less servicing) plus, with advancing,
+  // interest advanced on defaulted loans awaiting liquidation (`advanced_interest`).
+  std::vector<double> net_interest;
+  std::vector<double> advanced_interest;
+  std::vector<double> total_principal;  // sched_principal + prepayment + recovery
+  std::vector<double> cash_flow;        // net_interest + total_principal
+  std::vector<double> end_balance;      // performing balance at the end of the month
+  // Pool speeds actually realised: smm = prepayment / (begin - defaults - sched_principal),
+  // mdr = defaults / begin (decimals); cpr and cdr their annual equivalents in percent.
+  std::vector<double> smm, mdr, cpr, cdr;
+  std::vector<double> cum_loss_pct;     // cumulative loss, percent of cutoff_balance
+};
+
+// Lifetime totals per loan, the same index as LoanArrays. Dollars unless noted.
+struct LoanFlows {
+  std::vector<double> sched_principal, prepayment, defaults, loss, recovery;
+  std::vector<double> gross_interest, servicing, net_interest, advanced_interest, cash_flow;
+  std::vector<double> wal_years;       // sum (t/12) principal_t / sum principal_t; 0 if none
+  std::vector<double> present_value;   // sum cash_t x discount_t; empty without discount factors
+  std::vector<std::int32_t> last_month;  // last projection month with cash; 0 if none
+  std::size_t size() const { return cash_flow.size(); }
+};
+
+struct Projection {
+  PoolFlows pool;
+  LoanFlows loans;  // empty unless ProjectionOptions::loan_totals
+};
+
+// Projects every loan from its cut-off balance to maturity (or its balloon month), defaults off the
+// beginning balance, level payment on the performing balance, prepayment SMM x (performing less
+// scheduled principal), liquidation `lag_months` after default. Loans the tape marks 90+ days
+// delinquent or in foreclosure default in month 1 when Assumptions::delinquent_default is set.
+Projection project_pool(const LoanArrays& loans, const Assumptions& assumptions,
+                        const ProjectionOptions& options = {});
+
+}  // namespace poolbid

@@ -1,0 +1,296 @@
+// The monthly step of DESIGN.md section 4 over one chunk of loans, a block of kBlockLoans at a time:
+// months outer, loans inner, the block's state in arrays that stay in L1. No allocation, no pow and
+// no division per loan-month: the level payment is carried forward and scaled by what survives.
+#include <algorithm>
+#include <cmath>
+#include <memory>
+
+#include "cashflow/engine.h"
+
+namespace poolbid::detail {
+namespace {
+
+// By-value min and max: std::min / std::max return references, which can keep the loop below from
+// vectorising.
+inline int lesser(int a, int b) { return a < b ? a : b; }
+inline double greater(double a, double b) { return a > b ? a : b; }
+
+// One block's state, one slot per loan; `count` slots in use.
+struct Block {
+  std::size_t first = 0;  // index of slot 0 in LoanArrays
+  std::size_t count = 0;
+  int months = 0;         // the block's last final month
+  alignas(64) double balance[kBlockLoans];     // performing balance at the start of the month
+  alignas(64) double payment[kBlockLoans];     // level payment on `balance`, before defaults
+  alignas(64) double rate[kBlockLoans];        // note rate / 12
+  alignas(64) double fee[kBlockLoans];         // servicing fee / 12
+  alignas(64) double net[kBlockLoans];         // (note rate - servicing fee) / 12
+  alignas(64) double io_factor[kBlockLoans];   // level payment per dollar once interest-only ends
+  alignas(64) double io_end[kBlockLoans];      // last interest-only projection month; 0 = none
+  alignas(64) double last[kBlockLoans];        // final projection month (maturity or balloon)
+  alignas(64) double delinquent[kBlockLoans];  // 1 = defaults in full in month 1
+  alignas(64) int age[kBlockLoans];            // loan age at cut-off, months
+  // Lifetime totals (filled only when loan totals are asked for).
+  alignas(64) double sched[kBlockLoans];
+  alignas(64) double prepaid[kBlockLoans];
+  alignas(64) double defaulted[kBlockLoans];
+  alignas(64) double recovered[kBlockLoans];
+  alignas(64) double gross[kBlockLoans];
+  alignas(64) double serviced[kBlockLoans];
+  alignas(64) double netpaid[kBlockLoans];
+  alignas(64) double advanced[kBlockLoans];
+  alignas(64) double timed_principal[kBlockLoans];  // sum of month x principal, for WAL
+  alignas(64) double present_value[kBlockLoans];
+  alignas(64) double last_cash[kBlockLoans];
+};
+
+// A rate-changing loan in the block: its slot, its row in CouponPaths and its current note rate.
+struct CouponSlot {
+  std::size_t slot, path_row;
+  double annual_rate;
+};
+
+void load_block(const EngineInputs& in, std::size_t first, std::size_t count, Block& b) {
+  const LoanArrays& l = *in.loans;
+  b.first = first;
+  b.count = count;
+  b.months = 0;
+  for (std::size_t i = 0; i < count; ++i) {
+    const std::size_t g = first + i;
+    const double r = l.note_rate[g] / 12.0;
+    const double s = l.servicing_fee[g] / 12.0;
+    const int remaining = l.remaining_term[g];
+    const int io_end = l.io_months[g] > 0 ? std::clamp(l.io_months[g] - l.age[g], 0, remaining) : 0;
+    const int last = final_month(l, g);
+    b.balance[i] = l.current_balance[g];
+    b.rate[i] = r;
+    b.fee[i] = s;
+    b.net[i] = r - s;
+    b.io_end[i] = io_end;
+    b.io_factor[i] = io_end > 0 && remaining > io_end ? annuity_factor(r, remaining - io_end) : 0.0;
+    b.payment[i] = b.balance[i] * (io_end > 0 ? b.io_factor[i] : annuity_factor(r, remaining));
+    b.last[i] = last;
+    b.delinquent[i] = in.delinquent_default && (l.delinquency[g] == Delinquency::dq90_plus ||
+                                                l.delinquency[g] == Delinquency::foreclosure)
+                          ? 1.0
+                          : 0.0;
+    b.age[i] = l.age[g];
+    b.months = std::max(b.months, last);
+  }
+  if (in.loan_totals) {
+    for (double* total : {b.sched, b.prepaid, b.defaulted, b.recovered, b.gross, b.serviced,
+                          b.netpaid, b.advanced, b.timed_principal, b.present_value, b.last_cash})
+      std::fill(total, total + count, 0.0);
+  }
+}
+
+// Rate-changing loans of the block, in slot order.
+std::vector<CouponSlot> coupon_slots(const EngineInputs& in, const Block& b) {
+  std::vector<CouponSlot> slots;
+  if (!in.coupons) return slots;
+  const auto& listed = in.coupons->loans;
+  auto it = std::lower_bound(listed.begin(), listed.end(), b.first);
+  for (; it != listed.end() && *it < b.first + b.count; ++it) {
+    const std::size_t slot = *it - b.first;
+    slots.push_back({slot, static_cast<std::size_t>(it - listed.begin()), b.rate[slot] * 12.0});
+  }
+  return slots;
+}
+
+// Before month t: a loan whose coupon changes takes the new rate and its payment re-amortises the
+// beginning balance over the months left (or, while interest-only, the payment it will start with).
+void apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, int t) {
+  const CouponPaths& paths = *in.coupons;
+  const int column = std::min(t, paths.months) - 1;
+  for (CouponSlot& c : slots) {
+    const double annual = paths.rates[c.path_row * paths.months + column];
+    if (annual == c.annual_rate) continue;
+    c.annual_rate = annual;
+    const std::size_t i = c.slot;
+    const int remaining = in.loans->remaining_term[b.first + i];
+    const int io_end = static_cast<int>(b.io_end[i]);
+    b.rate[i] = annual / 12.0;
+    b.net[i] = b.rate[i] - b.fee[i];
+    if (t <= io_end) {
+      b.io_factor[i] = remaining > io_end ? annuity_factor(b.rate[i], remaining - io_end) : 0.0;
+    } else if (t <= remaining) {
+      b.payment[i] = b.balance[i] * annuity_factor(b.rate[i], remaining - t + 1);
+    }
+  }
+}
+
+// The loop. Template flags: which curves read the loan's age (a per-loan table lookup) rather than
+// the projection month (one value for the block), and whether per-loan totals are kept.
+template <bool kPrepayByAge, bool kDefaultByAge, bool kSeverityByAge, bool kTotals>
+void run_block(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, ChunkSums& sums) {
+  const double* const smm_table = in.smm.by_month.data();
+  const double* const mdr_table = in.mdr.by_month.data();
+  const double* const severity_table = in.severity.by_month.data();
+  const int smm_hold = in.smm.hold, mdr_hold = in.mdr.hold, severity_hold = in.severity.hold;
+  const double* const discount = in.discount.data();
+  const double* const advance_discount = in.advance_discount.data();
+  const int lag = in.lag;
+  const double lag_months = lag;
+  // Months of interest advanced per defaulted dollar: the lag when advancing, else none.
+  const double advance_months = in.advancing ? lag_months : 0.0;
+  const std::size_t n = b.count;
+
+  for (int t = 1; t <= b.months; ++t) {
+    if (!slots.empty()) apply_coupon_changes(in, b, slots, t);
+    const double month = t;
+    const double first_month = t == 1 ? 1.0 : 0.0;
+    const double smm_now = smm_table[std::min(t, smm_hold)];
+    const double mdr_now = mdr_table[std::min(t, mdr_hold)];
+    const double severity_now = severity_table[std::min(t, severity_hold)];
+    const double df_paid = kTotals ? discount[t] : 0.0;
+    const double df_liquidated = kTotals ? discount[t + lag] : 0.0;
+    const double df_advanced = kTotals && in.advancing ? advance_discount[t] : 0.0;
+
+    double s_begin = 0, s_defaults = 0, s_sched = 0, s_prepay = 0, s_gross = 0, s_servicing = 0,
+           s_net = 0, s_end = 0, s_recovery = 0, s_advance = 0;
+#pragma omp simd reduction(+ : s_begin, s_defaults, s_sched, s_prepay, s_gross, s_servicing, \
+                               s_net, s_end, s_recovery, s_advance)
+    for (std::size_t i = 0; i < n; ++i) {
+      double smm = smm_now, mdr = mdr_now, severity = severity_now;
+      if constexpr (kPrepayByAge) smm = smm_table[lesser(b.age[i] + t, smm_hold)];
+      if constexpr (kDefaultByAge) mdr = mdr_table[lesser(b.age[i] + t, mdr_hold)];
+      if constexpr (kSeverityByAge)
+        severity = severity_table[lesser(b.age[i] + t, severity_hold)];
+      mdr = greater(mdr, b.delinquent[i] * first_month);
+
+      // 1. Defaults off the beginning balance.
+      const double begin = b.balance[i];
+      const double defaulted = begin * mdr;
+      const double performing = begin - defaulted;
+      // 2-4. Interest on the performing balance; the level payment scales with it.
+      const bool interest_only = month <= b.io_end[i];
+      const bool final_month = month == b.last[i];
+      const double gross = performing * b.rate[i];
+      const double servicing = performing * b.fee[i];
+      const double net = performing * b.net[i];
+      const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
+      const double sched = final_month ? performing : payment - gross;
+      // 5. Prepayment on what is left after scheduled principal.
+      const double prepay = final_month ? 0.0 : smm * (performing - sched);
+      const double end = performing - sched - prepay;
+      b.balance[i] = end;
+      b.payment[i] = final_month      ? 0.0
+                     : interest_only ? end * b.io_factor[i]
+                                     : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
+      // 6-7. The defaulted balance is liquidated `lag` months on; advances come out of recovery.
+      const double advance = defaulted * b.net[i];
+      const double kept = greater(0.0, 1.0 - severity - b.net[i] * advance_months);
+      const double recovery = defaulted * kept;
+
+      s_begin += begin;
+      s_defaults += defaulted;
+      s_sched += sched;
+      s_prepay += prepay;
+      s_gross += gross;
+      s_servicing += servicing;
+      s_net += net;
+      s_end += end;
+      s_recovery += recovery;
+      s_advance += advance;
+
+      if constexpr (kTotals) {
+        const double advanced = advance * advance_months;
+        b.sched[i] += sched;
+        b.prepaid[i] += prepay;
+        b.defaulted[i] += defaulted;
+        b.recovered[i] += recovery;
+        b.gross[i] += gross;
+        b.serviced[i] += servicing;
+        b.netpaid[i] += net;
+        b.advanced[i] += advanced;
+        b.timed_principal[i] += month * (sched + prepay) + (month + lag_months) * recovery;
+        b.present_value[i] += (net + sched + prepay) * df_paid + recovery * df_liquidated +
+                              advance * df_advanced;
+        const double paid_through = greater(b.last_cash[i], begin > 0.0 ? month : 0.0);
+        b.last_cash[i] = greater(paid_through, defaulted > 0.0 ? month + lag_months : 0.0);
+      }
+    }
+    auto& s = sums.by_month;
+    s[kBegin][t] += s_begin;
+    s[kDefaults][t] += s_defaults;
+    s[kSched][t] += s_sched;
+    s[kPrepay][t] += s_prepay;
+    s[kGross][t] += s_gross;
+    s[kServicing][t] += s_servicing;
+    s[kNet][t] += s_net;
+    s[kEnd][t] += s_end;
+    s[kRecoveryByDefaultMonth][t] += s_recovery;
+    s[kAdvanceByDefaultMonth][t] += s_advance;
+  }
+}
+
+void store_totals(const Block& b, const EngineInputs& in, LoanFlows& out) {
+  const bool discounted = !out.present_value.empty();
+  for (std::size_t i = 0; i < b.count; ++i) {
+    const std::size_t g = b.first + i;
+    out.sched_principal[g] = b.sched[i];
+    out.prepayment[g] = b.prepaid[i];
+    out.defaults[g] = b.defaulted[i];
+    out.recovery[g] = b.recovered[i];
+    out.loss[g] = b.defaulted[i] - b.recovered[i];
+    out.gross_interest[g] = b.gross[i];
+    out.servicing[g] = b.serviced[i];
+    out.advanced_interest[g] = b.advanced[i];
+    out.net_interest[g] = b.netpaid[i] + b.advanced[i];
+    out.cash_flow[g] = out.net_interest[g] + b.sched[i] + b.prepaid[i] + b.recovered[i];
+    const double principal = b.sched[i] + b.prepaid[i] + b.recovered[i];
+    out.wal_years[g] = principal > 0.0 ? b.timed_principal[i] / (12.0 * principal) : 0.0;
+    if (discounted) out.present_value[g] = b.present_value[i];
+    out.last_month[g] = static_cast<std::int32_t>(b.last_cash[i]);
+  }
+  (void)in;
+}
+
+using BlockLoop = void (*)(const EngineInputs&, Block&, std::vector<CouponSlot>&, ChunkSums&);
+
+template <bool kTotals>
+BlockLoop pick_loop(bool prepay_by_age, bool default_by_age, bool severity_by_age) {
+  const int key = (prepay_by_age ? 4 : 0) + (default_by_age ? 2 : 0) + (severity_by_age ? 1 : 0);
+  switch (key) {
+    case 0: return run_block<false, false, false, kTotals>;
+    case 1: return run_block<false, false, true, kTotals>;
+    case 2: return run_block<false, true, false, kTotals>;
+    case 3: return run_block<false, true, true, kTotals>;
+    case 4: return run_block<true, false, false, kTotals>;
+    case 5: return run_block<true, false, true, kTotals>;
+    case 6: return run_block<true, true, false, kTotals>;
+    default: return run_block<true, true, true, kTotals>;
+  }
+}
+
+}  // namespace
+
+double annuity_factor(double r, int months) {
+  if (months <= 0) return 0.0;
+  if (r == 0.0) return 1.0 / months;
+  return r / (1.0 - std::pow(1.0 + r, -months));
+}
+
+int final_month(const LoanArrays& loans, std::size_t i) {
+  const int remaining = loans.remaining_term[i];
+  const int balloon = loans.balloon_month[i];
+  if (balloon > 0 && balloon - loans.age[i] >= 1) return std::min(remaining, balloon - loans.age[i]);
+  return remaining;
+}
+
+void project_chunk(const EngineInputs& in, std::size_t first, std::size_t last, ChunkSums& sums) {
+  const bool by_age[3] = {in.smm.clock == CurveClock::loan_age,
+                          in.mdr.clock == CurveClock::loan_age,
+                          in.severity.clock == CurveClock::loan_age};
+  const BlockLoop loop = in.loan_totals ? pick_loop<true>(by_age[0], by_age[1], by_age[2])
+                                        : pick_loop<false>(by_age[0], by_age[1], by_age[2]);
+  auto block = std::make_unique<Block>();
+  for (std::size_t start = first; start < last; start += kBlockLoans) {
+    load_block(in, start, std::min(kBlockLoans, last - start), *block);
+    std::vector<CouponSlot> slots = coupon_slots(in, *block);
+    loop(in, *block, slots, sums);
+    if (in.loan_totals) store_totals(*block, in, *in.loan_totals);
+  }
+}
+
+}  // namespace poolbid::detail

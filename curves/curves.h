@@ -1,0 +1,137 @@
+// Assumption curves: prepayment (CPR), default (CDR) and loss severity as functions of loan age or
+// projection month -- constant, month-by-month vector, linear ramp, PSA, SDA -- with the compact
+// text form the command line uses and the JSON assumptions file. Rates are decimals per year.
+// Everything here is a plain value; the functions are pure and safe to call from any thread.
+#pragma once
+
+#include <cstdint>
+#include <stdexcept>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace poolbid {
+
+using Rate = double;  // decimal per year: 0.065
+
+// ---- Standard curves and rate conversions (DESIGN.md sections 2 and 3) ---------------------------
+// PSA 100%: CPR = 6% x min(1, age / 30); `multiple` 1.5 = 150 PSA.
+Rate psa_cpr(double multiple, int age_months);
+// SDA 100%: CDR 0.02% x age to 30, 0.60% to 60, down 0.0095% a month to 120, then 0.03%.
+Rate sda_cdr(double multiple, int age_months);
+// SMM = 1 - (1 - CPR)^(1/12), MDR the same from CDR; and back: CPR = 1 - (1 - SMM)^12.
+double smm_from_cpr(Rate cpr);
+Rate cpr_from_smm(double smm);
+double mdr_from_cdr(Rate cdr);
+Rate cdr_from_mdr(double mdr);
+
+// ---- Assumption curves ----------------------------------------------------------------------------
+// Which month a curve reads: the loan's age (age at cut-off + projection month, so a loan 3 months
+// old at cut-off reads month 4 in projection month 1) or the projection month (1 = the first month
+// after cut-off, the same for every loan).
+enum class CurveClock : std::uint8_t { loan_age, projection_month };
+
+enum class CurveShape : std::uint8_t {
+  constant,  // `value` every month
+  vector,    // `values[k - 1]` in month k; the last value holds after the vector ends
+  ramp,      // linear from `ramp_from` in month 1 to `ramp_to` in month `ramp_months`, then holds
+  psa,       // psa_cpr(value, k): `value` is the multiple (1.5 = 150%)
+  sda,       // sda_cdr(value, k): `value` is the multiple
+};
+
+// One assumption as a function of month k = 1, 2, ...: an annual rate (CPR, CDR) or, for severity,
+// a share of the defaulted balance. All values decimals (0.08 = 8%).
+struct SpeedCurve {
+  CurveShape shape = CurveShape::constant;
+  CurveClock clock = CurveClock::projection_month;
+  double value = 0;              // constant: the rate or share; psa / sda: the multiple
+  std::vector<double> values{};  // vector
+  double ramp_from = 0;          // ramp
+  double ramp_to = 0;
+  int ramp_months = 1;
+
+  bool operator==(const SpeedCurve&) const = default;
+};
+
+// A constant curve read by projection month.
+inline SpeedCurve constant_curve(double value) {
+  SpeedCurve curve;
+  curve.value = value;
+  return curve;
+}
+
+// The curve's value in month k (k >= 1; k = 0 reads as month 1).
+double curve_value(const SpeedCurve& curve, int month);
+
+// The curve tabulated for the monthly loop: month k reads `by_month[min(k, hold)]`; by_month[0]
+// repeats month 1. For CPR and CDR the table holds SMM / MDR (converted once, not per loan-month);
+// for severity it holds the share itself.
+struct MonthlyTable {
+  std::vector<double> by_month;  // size hold + 1
+  int hold = 1;                  // last month with its own value; later months read this one
+  CurveClock clock = CurveClock::projection_month;
+};
+MonthlyTable monthly_rate_table(const SpeedCurve& annual_rate);  // SMM or MDR by month
+MonthlyTable monthly_share_table(const SpeedCurve& share);       // severity by month
+
+// ---- Assumptions for one projection ---------------------------------------------------------------
+// What the servicer advances on loans that have defaulted but are not yet liquidated.
+enum class Advancing : std::uint8_t {
+  none,      // nothing: the investor gets no interest on defaulted balance
+  interest,  // net interest each month until liquidation, repaid from the liquidation proceeds
+};
+
+struct Assumptions {
+  // Voluntary prepayment, CPR. Default none (0 CPR).
+  SpeedCurve prepay;
+  // Default, CDR, applied to the beginning balance each month. Default none (0 CDR).
+  SpeedCurve default_rate;
+  // Share of the defaulted balance lost at liquidation, read in the month of default.
+  // Default 40% (illustrative: first-lien severities of 30-60% are commonly reported).
+  SpeedCurve severity = constant_curve(0.40);
+  // Months from default to liquidation; 0 = the same month. Default 12 (illustrative).
+  int lag_months = 12;
+  Advancing advancing = Advancing::none;
+  // Loans 90+ days delinquent or in foreclosure at cut-off default in full in month 1.
+  bool delinquent_default = false;
+};
+
+// ---- Text forms (command line) --------------------------------------------------------------------
+// Speeds are annual percent, as the trade quotes them:
+//   prepay:   cpr:8   psa:150   cpr:6,7,8,9 (vector)   cpr:2..8/24 (ramp 2% -> 8% over 24 months)
+//   default:  cdr:1.5 sda:200   cdr:0.5,1,1.5           cdr:0..3/36
+//   severity: 45      45,40,35  60..40/24               (percent of defaulted balance)
+// A curve reads loan age or projection month: `@age` or `@month` after any form says which.
+// PSA and SDA read loan age unless told otherwise; the other forms read the projection month.
+// Throws AssumptionError (source = `option`, the text as value) on a bad form.
+SpeedCurve parse_prepay(std::string_view text, std::string_view option = "--prepay");
+SpeedCurve parse_default(std::string_view text, std::string_view option = "--default");
+SpeedCurve parse_severity(std::string_view text, std::string_view option = "--severity");
+int parse_lag(std::string_view text, std::string_view option = "--lag");
+Advancing parse_advancing(std::string_view text, std::string_view option = "--advancing");
+
+// The canonical text form of a curve (parse_prepay(prepay_text(c)) == c); for reports.
+std::string prepay_text(const SpeedCurve& curve);
+std::string default_text(const SpeedCurve& curve);
+std::string severity_text(const SpeedCurve& curve);
+std::string_view to_string(Advancing advancing);  // "none", "interest"
+
+// ---- JSON assumptions file --------------------------------------------------------------------------
+// {"prepay": "psa:150", "default": "sda:200", "severity": 45, "lag_months": 12,
+//  "advancing": "interest", "delinquent_default": true}
+// Each curve may also be an object with explicit monthly values in percent:
+//   {"cpr": [4, 5, 6, 7, 8], "clock": "loan_age"}   {"cdr": [...]}   {"severity": [...]}
+// Keys left out keep `base`'s values; unknown keys are an error. Format documented in the README.
+Assumptions load_assumptions(const std::string& path, const Assumptions& base = {});
+Assumptions parse_assumptions(std::string_view json_text, std::string_view source_name,
+                              const Assumptions& base = {});
+
+// A bad assumption: `source` is the option ("--prepay") or file, `key` the JSON key ("" for an
+// option), `value` the text at fault. what(): "--prepay 'psb:150': unknown form; use cpr:.. or psa:.."
+struct AssumptionError : std::runtime_error {
+  AssumptionError(std::string source, std::string key, std::string value,
+                  const std::string& message);
+  std::string source, key, value;
+};
+
+}  // namespace poolbid
