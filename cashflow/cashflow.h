@@ -27,8 +27,8 @@ struct ProjectionOptions {
   // Fill Projection::loans with one row of lifetime totals per loan. Costs memory and ~20% time.
   bool loan_totals = false;
   // Discount factor for the cash of each projection month (index t = month t; [0] unused). If
-  // given and loan_totals is set, each loan's present value is filled. Months beyond the vector
-  // are an error (std::invalid_argument).
+  // given and loan_totals is set, each loan's present value is filled. It must cover the longest
+  // loan's final month plus Assumptions::lag_months, else std::invalid_argument.
   std::span<const double> discount;
   // Coupon paths for rate-changing loans; null = every loan keeps its note rate.
   const CouponPaths* coupons = nullptr;
@@ -65,7 +65,7 @@ struct LoanFlows {
   std::vector<double> gross_interest, servicing, net_interest, advanced_interest, cash_flow;
   std::vector<double> wal_years;       // sum (t/12) principal_t / sum principal_t; 0 if none
   std::vector<double> present_value;   // sum cash_t x discount_t; empty without discount factors
-  std::vector<std::int32_t> last_month;  // last projection month with cash; 0 if none
+  std::vector<std::int32_t> last_month;  // last month the investor gets cash; 0 if none
   std::size_t size() const { return cash_flow.size(); }
 };
 

@@ -206,8 +206,11 @@ void run_block(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots,
         b.timed_principal[i] += month * (sched + prepay) + (month + lag_months) * recovery;
         b.present_value[i] += (net + sched + prepay) * df_paid + recovery * df_liquidated +
                               advance * df_advanced;
-        const double paid_through = greater(b.last_cash[i], begin > 0.0 ? month : 0.0);
-        b.last_cash[i] = greater(paid_through, defaulted > 0.0 ? month + lag_months : 0.0);
+        // Cash arrives this month, through the advances (months t .. t+lag-1) and at the sale.
+        const double paid = greater(b.last_cash[i], net + sched + prepay > 0.0 ? month : 0.0);
+        const double advanced_to = advanced > 0.0 ? month + advance_months - 1.0 : 0.0;
+        b.last_cash[i] =
+            greater(greater(paid, advanced_to), recovery > 0.0 ? month + lag_months : 0.0);
       }
     }
     auto& s = sums.by_month;

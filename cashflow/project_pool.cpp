@@ -136,7 +136,7 @@ PoolFlows pool_table(const std::array<std::vector<double>, detail::kSumCount>& s
   }
   // Months after the last cash, default or liquidation carry nothing: drop them.
   int used = months;
-  while (used > 1) {
+  while (used > 0) {
     const std::size_t k = used - 1;
     if (p.begin_balance[k] != 0 || p.defaults[k] != 0 || p.loss[k] != 0 || p.cash_flow[k] != 0)
       break;

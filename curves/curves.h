@@ -83,9 +83,9 @@ enum class Advancing : std::uint8_t {
 
 struct Assumptions {
   // Voluntary prepayment, CPR. Default none (0 CPR).
-  SpeedCurve prepay;
+  SpeedCurve prepay{};
   // Default, CDR, applied to the beginning balance each month. Default none (0 CDR).
-  SpeedCurve default_rate;
+  SpeedCurve default_rate{};
   // Share of the defaulted balance lost at liquidation, read in the month of default.
   // Default 40% (illustrative: first-lien severities of 30-60% are commonly reported).
   SpeedCurve severity = constant_curve(0.40);

@@ -30,10 +30,15 @@ struct TestLoan {
   std::string state = "CA";  // "" = not given
   Occupancy occupancy = Occupancy::owner;
   Delinquency delinquency = Delinquency::current;
+  double servicing = 0.0025;  // servicing fee, decimal per year
+  int original_term = 360;
+  Amortization amortization = Amortization::fixed;
+  int io_months = 0;          // interest-only months from first payment; 0 = none
+  int balloon_month = 0;      // loan month the balloon is paid; 0 = none
 };
 
-// Loans in order, tape rows 2, 3, ...; one seller, no ARM index; fixed-rate 30-year loans with a
-// 0.25% servicing fee, full documentation, single-family purchases unless the TestLoan says more.
+// Loans in order, tape rows 2, 3, ...; one seller, no ARM index; full documentation, single-family
+// purchases; fixed-rate 30-year loans with a 0.25% servicing fee unless the TestLoan says otherwise.
 inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
   LoanArrays a;
   a.seller_names = {"test seller"};
@@ -46,13 +51,13 @@ inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
     a.current_balance.push_back(t.upb);
     a.original_balance.push_back(kNaN);
     a.note_rate.push_back(t.rate);
-    a.servicing_fee.push_back(0.0025);
-    a.original_term.push_back(360);
+    a.servicing_fee.push_back(t.servicing);
+    a.original_term.push_back(t.original_term);
     a.remaining_term.push_back(t.remaining);
     a.age.push_back(t.age);
-    a.amortization.push_back(Amortization::fixed);
-    a.io_months.push_back(0);
-    a.balloon_month.push_back(0);
+    a.amortization.push_back(t.amortization);
+    a.io_months.push_back(t.io_months);
+    a.balloon_month.push_back(t.balloon_month);
     a.arm_index.push_back(0);
     a.arm_margin.push_back(kNaN);
     a.arm_periodic_cap.push_back(kNaN);

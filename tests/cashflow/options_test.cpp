@@ -1,0 +1,465 @@
+// Tests project_pool's loan types and options one at a time: interest-only and balloon loans,
+// advancing, lag, delinquent default, zero-rate loans, coupon paths, severity by month of default,
+// where the table ends, and bad options.
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <stdexcept>
+#include <vector>
+
+#include "cashflow/cashflow.h"
+#include "tests/cashflow/flows_support.h"
+
+namespace poolbid {
+namespace {
+
+using namespace testing_support;
+
+double payment(const PoolFlows& f, int t) {
+  return f.sched_principal[t - 1] + f.gross_interest[t - 1];
+}
+
+// ---- interest-only and balloon loans
+// ----------------------------------------------------------------
+
+TEST(InterestOnly, PaysInterestOnlyThenAmortisesToZero) {
+  // 360-month loan, 10 months old, interest-only for the first 120 months from first payment.
+  const LoanArrays loans = make_loans({{.id = "IO",
+                                        .upb = 300'000,
+                                        .rate = 0.06,
+                                        .remaining = 350,
+                                        .age = 10,
+                                        .servicing = 0.0025,
+                                        .original_term = 360,
+                                        .amortization = Amortization::interest_only,
+                                        .io_months = 120}});
+  const PoolFlows f = project_pool(loans, Assumptions{}).pool;
+  ASSERT_EQ(f.months, 350);
+  for (int t = 1; t <= 110; ++t) {  // loan months 11..120
+    ASSERT_EQ(f.sched_principal[t - 1], 0.0) << t;
+    ASSERT_NEAR(f.gross_interest[t - 1], 1'500.0, 1e-9) << t;  // 300,000 x 6% / 12
+    ASSERT_NEAR(f.net_interest[t - 1], 1'437.5, 1e-9) << t;    // 300,000 x 5.75% / 12
+    ASSERT_EQ(f.begin_balance[t - 1], 300'000.0) << t;
+  }
+  // Month 111 (loan month 121): level payment on 300,000 over the 240 months left.
+  const double level = level_payment(300'000, 0.06, 240);
+  EXPECT_NEAR(payment(f, 111), level, 1e-8);
+  EXPECT_GT(f.sched_principal[110], 0.0);
+  // the last month pays the balance left, which carries the rounding of 240 months
+  for (int t = 112; t <= 350; ++t) ASSERT_NEAR(payment(f, t), level, 1e-6) << t;
+  EXPECT_EQ(f.end_balance[349], 0.0);  // identity: amortises to exactly zero
+}
+
+TEST(InterestOnly, PastTheInterestOnlyPeriodAmortisesFromMonthOne) {
+  const LoanArrays loans = make_loans({{.id = "IO",
+                                        .upb = 250'000,
+                                        .rate = 0.05,
+                                        .remaining = 230,
+                                        .age = 130,
+                                        .original_term = 360,
+                                        .amortization = Amortization::interest_only,
+                                        .io_months = 120}});
+  const PoolFlows f = project_pool(loans, Assumptions{}).pool;
+  ASSERT_EQ(f.months, 230);
+  EXPECT_NEAR(payment(f, 1), level_payment(250'000, 0.05, 230), 1e-8);
+  EXPECT_EQ(f.end_balance.back(), 0.0);
+}
+
+TEST(Balloon, PaysTheBalanceAtTheBalloonMonth) {
+  // 30-year amortisation, 10 months old, balloon in loan month 84 = projection month 74.
+  const LoanArrays loans = make_loans({{.id = "B",
+                                        .upb = 200'000,
+                                        .rate = 0.07,
+                                        .remaining = 350,
+                                        .age = 10,
+                                        .original_term = 360,
+                                        .amortization = Amortization::balloon,
+                                        .balloon_month = 84}});
+  const PoolFlows f = project_pool(loans, Assumptions{}).pool;
+  ASSERT_EQ(f.months, 74);
+  const double level = level_payment(200'000, 0.07, 350);
+  double balance = 200'000;  // independently amortised
+  for (int t = 1; t <= 73; ++t) {
+    ASSERT_NEAR(payment(f, t), level, 1e-8) << t;
+    balance = balance * (1 + 0.07 / 12) - level;
+  }
+  EXPECT_NEAR(f.begin_balance[73], balance, 1e-6);
+  EXPECT_EQ(f.sched_principal[73], f.begin_balance[73]);  // the balloon: everything left
+  EXPECT_NEAR(f.gross_interest[73], balance * 0.07 / 12, 1e-8);
+  EXPECT_EQ(f.end_balance[73], 0.0);
+}
+
+TEST(Balloon, PrepaymentStopsAtTheBalloon) {
+  const LoanArrays loans = make_loans({{.id = "B",
+                                        .upb = 200'000,
+                                        .rate = 0.07,
+                                        .remaining = 350,
+                                        .age = 10,
+                                        .original_term = 360,
+                                        .amortization = Amortization::balloon,
+                                        .balloon_month = 84}});
+  const Assumptions a{.prepay = constant(0.10), .default_rate = constant(0)};
+  const PoolFlows f = project_pool(loans, a).pool;
+  ASSERT_EQ(f.months, 74);
+  EXPECT_EQ(f.prepayment[73], 0.0);
+  EXPECT_EQ(f.sched_principal[73], f.begin_balance[73]);
+  EXPECT_GT(f.prepayment[72], 0.0);
+  EXPECT_EQ(f.end_balance[73], 0.0);
+}
+
+// ---- liquidation: advancing, lag, severity
+// ---------------------------------------------------------
+
+LoanArrays one_loan(int remaining = 100) {
+  return make_loans({{.id = "L",
+                      .upb = 500'000,
+                      .rate = 0.065,
+                      .remaining = remaining,
+                      .age = 20,
+                      .servicing = 0.0025}});
+}
+
+TEST(Advancing, TotalSeverityRecoversNothingAndAdvancesInterest) {
+  const Assumptions a{.prepay = constant(0),
+                      .default_rate = constant(0.05),
+                      .severity = constant(1.0),
+                      .lag_months = 12,
+                      .advancing = Advancing::interest};
+  const PoolFlows f = project_pool(one_loan(), a).pool;
+  ASSERT_EQ(f.months, 112);
+  for (int t = 1; t <= f.months; ++t) ASSERT_EQ(f.recovery[t - 1], 0.0) << t;
+  EXPECT_GT(f.advanced_interest[0], 0.0);
+  // DESIGN.md 4.7: month 1 advances net interest on month 1's defaults
+  EXPECT_NEAR(f.advanced_interest[0], f.defaults[0] * (0.065 - 0.0025) / 12, 1e-9);
+  // identity: net interest includes the advance
+  EXPECT_NEAR(f.net_interest[0],
+              (f.begin_balance[0] - f.defaults[0]) * 0.0625 / 12 + f.advanced_interest[0], 1e-8);
+  for (int t = 1; t <= 100; ++t)
+    ASSERT_NEAR(f.loss[t + 12 - 1], f.defaults[t - 1], 1e-9)
+        << t;  // loss = D when nothing comes back
+  // after the last default month, the cohorts still awaiting liquidation run off one by one
+  EXPECT_GT(f.advanced_interest[110], 0.0);
+  EXPECT_NEAR(f.advanced_interest[110], f.defaults[99] * 0.0625 / 12,
+              1e-9);                         // month 111: only month 100's
+  EXPECT_EQ(f.advanced_interest[111], 0.0);  // month 112: liquidation, no advance
+}
+
+TEST(Advancing, RecoveryRepaysTheAdvances) {
+  const Assumptions a{.prepay = constant(0),
+                      .default_rate = constant(0.05),
+                      .severity = constant(0.30),
+                      .lag_months = 12,
+                      .advancing = Advancing::interest};
+  const PoolFlows f = project_pool(one_loan(), a).pool;
+  ASSERT_EQ(f.months, 112);
+  const double n = 0.065 - 0.0025;
+  for (int t = 1; t <= 100; ++t) {
+    const double d = f.defaults[t - 1];
+    // DESIGN.md 4.7: recovery = (1 - severity) D - advances; here 12 months of D n / 12
+    ASSERT_NEAR(f.recovery[t + 11], 0.70 * d - 12 * d * n / 12, 1e-9) << t;
+    ASSERT_NEAR(f.loss[t + 11], d - (0.70 * d - 12 * d * n / 12), 1e-9) << t;
+  }
+}
+
+TEST(Advancing, NoneAdvancesNothing) {
+  const Assumptions a{.prepay = constant(0),
+                      .default_rate = constant(0.05),
+                      .severity = constant(0.30),
+                      .lag_months = 12};
+  const PoolFlows f = project_pool(one_loan(), a).pool;
+  for (int t = 1; t <= f.months; ++t) ASSERT_EQ(f.advanced_interest[t - 1], 0.0) << t;
+  for (int t = 1; t <= 100; ++t) ASSERT_NEAR(f.recovery[t + 11], 0.70 * f.defaults[t - 1], 1e-9);
+}
+
+TEST(Lag, ZeroLiquidatesInTheMonthOfDefault) {
+  for (Advancing adv : {Advancing::none, Advancing::interest}) {
+    SCOPED_TRACE(to_string(adv));
+    const Assumptions a{.prepay = constant(0),
+                        .default_rate = constant(0.05),
+                        .severity = constant(0.40),
+                        .lag_months = 0,
+                        .advancing = adv};
+    const PoolFlows f = project_pool(one_loan(), a).pool;
+    ASSERT_EQ(f.months, 100);  // no month past the last payment
+    for (int t = 1; t <= 100; ++t) {
+      ASSERT_GT(f.defaults[t - 1], 0.0) << t;
+      ASSERT_NEAR(f.recovery[t - 1], 0.60 * f.defaults[t - 1], 1e-9) << t;
+      ASSERT_NEAR(f.loss[t - 1], 0.40 * f.defaults[t - 1], 1e-9) << t;
+      ASSERT_EQ(f.advanced_interest[t - 1], 0.0) << t;  // nothing to advance with no wait
+    }
+  }
+}
+
+TEST(Severity, VectorByProjectionMonthAppliesToTheDefaultMonthsCohort) {
+  const std::vector<double> severities = {0.10, 0.20, 0.30, 0.40, 0.50, 0.60, 0.70, 0.80};
+  const Assumptions a{.prepay = constant(0),
+                      .default_rate = constant(0.10),
+                      .severity = vector_curve(severities),
+                      .lag_months = 6};
+  const PoolFlows f = project_pool(one_loan(), a).pool;
+  ASSERT_EQ(f.months, 106);
+  for (int t = 1; t <= 100; ++t) {
+    const double sev = severities[std::min<std::size_t>(t, severities.size()) - 1];
+    // the severity of month t (the default month), not of month t + 6 (the liquidation month)
+    ASSERT_NEAR(f.loss[t + 5], sev * f.defaults[t - 1], 1e-9) << t;
+    ASSERT_NEAR(f.recovery[t + 5], (1 - sev) * f.defaults[t - 1], 1e-9) << t;
+  }
+}
+
+TEST(Severity, ByLoanAgeReadsTheAgeAtDefault) {
+  // Severity ramps with loan age; the loan is 20 months old at cut-off, so month 1 reads age 21.
+  const SpeedCurve sev = ramp(0.0, 0.80, 40, CurveClock::loan_age);
+  const Assumptions a{
+      .prepay = constant(0), .default_rate = constant(0.10), .severity = sev, .lag_months = 3};
+  const PoolFlows f = project_pool(one_loan(), a).pool;
+  for (int t = 1; t <= 30; ++t)
+    ASSERT_NEAR(f.loss[t + 2], curve_value(sev, 20 + t) * f.defaults[t - 1], 1e-9) << t;
+}
+
+// ---- delinquent loans
+// -------------------------------------------------------------------------------
+
+TEST(DelinquentDefault, OnlyNinetyPlusAndForeclosureDefaultInMonthOne) {
+  const Delinquency statuses[] = {Delinquency::unknown,   Delinquency::current,
+                                  Delinquency::dq30,      Delinquency::dq60,
+                                  Delinquency::dq90_plus, Delinquency::foreclosure};
+  std::vector<TestLoan> tape;
+  for (Delinquency d : statuses)
+    tape.push_back({.id = std::string(to_string(d)),
+                    .upb = 100'000 + 1'000.0 * tape.size(),
+                    .rate = 0.06,
+                    .delinquency = d});
+  const LoanArrays loans = make_loans(tape);
+  ProjectionOptions o;
+  o.loan_totals = true;
+  const Assumptions on{.prepay = constant(0),
+                       .default_rate = constant(0),
+                       .severity = constant(0.5),
+                       .lag_months = 12,
+                       .delinquent_default = true};
+  const Projection p = project_pool(loans, on, o);
+  for (std::size_t i = 0; i < loans.size(); ++i) {
+    const bool defaults =
+        statuses[i] == Delinquency::dq90_plus || statuses[i] == Delinquency::foreclosure;
+    SCOPED_TRACE(loans.loan_id[i]);
+    EXPECT_EQ(p.loans.defaults[i], defaults ? loans.current_balance[i] : 0.0);
+    EXPECT_NEAR(p.loans.loss[i], defaults ? 0.5 * loans.current_balance[i] : 0.0, 1e-9);
+    EXPECT_EQ(p.loans.sched_principal[i] + p.loans.prepayment[i] > 0, !defaults);
+  }
+  EXPECT_EQ(p.pool.defaults[0], 104'000.0 + 105'000.0);
+  for (int t = 2; t <= p.pool.months; ++t) ASSERT_EQ(p.pool.defaults[t - 1], 0.0) << t;
+  EXPECT_NEAR(p.pool.loss[12] + p.pool.recovery[12], 209'000.0, 1e-9);  // month 13
+
+  const Assumptions off{.prepay = constant(0),
+                        .default_rate = constant(0),
+                        .severity = constant(0.5),
+                        .lag_months = 12};
+  const Projection q = project_pool(loans, off, o);
+  for (std::size_t i = 0; i < loans.size(); ++i) EXPECT_EQ(q.loans.defaults[i], 0.0);
+}
+
+// ---- zero-rate loans
+// --------------------------------------------------------------------------------
+
+TEST(ZeroRate, AmortisesStraightLine) {
+  const LoanArrays loans = make_loans({{.id = "Z",
+                                        .upb = 120'000,
+                                        .rate = 0.0,
+                                        .remaining = 120,
+                                        .age = 0,
+                                        .servicing = 0.0,
+                                        .original_term = 120}});
+  const PoolFlows f = project_pool(loans, Assumptions{}).pool;
+  ASSERT_EQ(f.months, 120);
+  for (int t = 1; t <= 120; ++t) {
+    ASSERT_NEAR(f.sched_principal[t - 1], 1'000.0, 1e-9) << t;  // A / m
+    ASSERT_EQ(f.gross_interest[t - 1], 0.0) << t;
+  }
+  EXPECT_EQ(f.end_balance.back(), 0.0);
+
+  // With prepayment the payment is still A / m on the balance left.
+  const PoolFlows g =
+      project_pool(loans, Assumptions{.prepay = constant(0.2), .default_rate = constant(0)}).pool;
+  for (int t = 1; t <= g.months; ++t)
+    ASSERT_NEAR(g.sched_principal[t - 1], g.begin_balance[t - 1] / (120 - t + 1), 1e-9) << t;
+}
+
+// ---- coupon paths
+// -----------------------------------------------------------------------------------
+
+LoanArrays two_loans() {
+  return make_loans({{.id = "F", .upb = 300'000, .rate = 0.055, .remaining = 300, .age = 60},
+                     {.id = "A",
+                      .upb = 400'000,
+                      .rate = 0.06,
+                      .remaining = 300,
+                      .age = 60,
+                      .servicing = 0.00375,
+                      .amortization = Amortization::arm}});
+}
+
+void expect_identical(const PoolFlows& a, const PoolFlows& b) {
+  ASSERT_EQ(a.months, b.months);
+  const auto ca = all_columns(a), cb = all_columns(b);
+  for (std::size_t k = 0; k < ca.size(); ++k)
+    EXPECT_EQ(*ca[k].second, *cb[k].second) << ca[k].first;
+}
+
+TEST(CouponPaths, PathAtTheNoteRateChangesNothing) {
+  const LoanArrays loans = two_loans();
+  CouponPaths paths;
+  paths.months = 48;
+  paths.loans = {1};
+  paths.rates.assign(48, 0.06);
+  const Assumptions a{.prepay = constant(0.08),
+                      .default_rate = constant(0.01),
+                      .lag_months = 6,
+                      .advancing = Advancing::interest};
+  ProjectionOptions o;
+  const PoolFlows without = project_pool(loans, a, o).pool;
+  o.coupons = &paths;
+  const PoolFlows with = project_pool(loans, a, o).pool;
+  expect_identical(with, without);  // identity: the same rate every month is no change at all
+}
+
+TEST(CouponPaths, StepUpReamortisesOverTheMonthsLeft) {
+  const LoanArrays loans = two_loans();
+  CouponPaths paths;
+  paths.months = 24;
+  paths.loans = {1};
+  for (int t = 1; t <= 24; ++t) paths.rates.push_back(t <= 12 ? 0.06 : t < 24 ? 0.08 : 0.09);
+  ProjectionOptions o;
+  o.coupons = &paths;
+  o.loan_totals = true;
+  const Projection p = project_pool(loans, Assumptions{}, o);
+  // The ARM alone (loan index 0 of its own tape), to read its rows.
+  CouponPaths alone = paths;
+  alone.loans = {0};
+  ProjectionOptions o_alone;
+  o_alone.coupons = &alone;
+  const PoolFlows f = project_pool(single_loan(loans, 1), Assumptions{}, o_alone).pool;
+  ASSERT_EQ(f.months, 300);
+
+  // Independently: 12 months of level payment at 6% over 300 months, then 8% over 288.
+  const double first = level_payment(400'000, 0.06, 300);
+  double balance = 400'000;
+  for (int t = 1; t <= 12; ++t) {
+    ASSERT_NEAR(payment(f, t), first, 1e-8) << t;
+    balance = balance * (1 + 0.06 / 12) - first;
+  }
+  ASSERT_NEAR(f.begin_balance[12], balance, 1e-6);
+  const double stepped = level_payment(balance, 0.08, 288);
+  EXPECT_NEAR(payment(f, 13), stepped, 1e-7);
+  EXPECT_NEAR(f.gross_interest[12], balance * 0.08 / 12, 1e-8);
+  EXPECT_NEAR(f.net_interest[12], balance * (0.08 - 0.00375) / 12, 1e-8);
+  for (int t = 14; t <= 23; ++t) ASSERT_NEAR(payment(f, t), stepped, 1e-7) << t;
+  // Month 24 on: 9%, the path's last rate, holds to maturity.
+  const double b24 = f.begin_balance[23];
+  const double last = level_payment(b24, 0.09, 300 - 23);
+  for (int t = 24; t <= 300; ++t) {
+    ASSERT_NEAR(payment(f, t), last, 1e-7) << t;
+    ASSERT_NEAR(f.gross_interest[t - 1], f.begin_balance[t - 1] * 0.09 / 12, 1e-8) << t;
+  }
+  EXPECT_EQ(f.end_balance.back(), 0.0);
+
+  // The unlisted loan keeps its note rate: the pool is it plus the ARM.
+  const PoolFlows fixed = project_pool(single_loan(loans, 0), Assumptions{}).pool;
+  for (int t = 1; t <= 300; ++t)
+    ASSERT_NEAR(p.pool.gross_interest[t - 1], fixed.gross_interest[t - 1] + f.gross_interest[t - 1],
+                1e-8)
+        << t;
+  EXPECT_NEAR(fixed.gross_interest[0], 300'000 * 0.055 / 12, 1e-9);
+}
+
+TEST(CouponPaths, BadPathsAreAnError) {
+  const LoanArrays loans = two_loans();
+  ProjectionOptions o;
+  CouponPaths short_rates{.months = 12, .loans = {1}, .rates = std::vector<double>(11, 0.06)};
+  o.coupons = &short_rates;
+  EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
+  CouponPaths out_of_range{.months = 1, .loans = {2}, .rates = {0.06}};
+  o.coupons = &out_of_range;
+  EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
+  CouponPaths not_ascending{.months = 1, .loans = {1, 0}, .rates = {0.06, 0.05}};
+  o.coupons = &not_ascending;
+  EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
+}
+
+// ---- where the table ends
+// ---------------------------------------------------------------------------
+
+TEST(TableLength, RunsToTheLastMonthWithCashOrLiquidation) {
+  ProjectionOptions o;
+  o.loan_totals = true;
+  EXPECT_EQ(project_pool(one_loan(100), Assumptions{}, o).pool.months, 100);
+  // Defaults in month 100 liquidate in month 112.
+  const Assumptions defaults{
+      .prepay = constant(0), .default_rate = constant(0.02), .lag_months = 12};
+  EXPECT_EQ(project_pool(one_loan(100), defaults, o).pool.months, 112);
+  // 100% CPR pays everything in month 1.
+  const Projection all_at_once = project_pool(
+      one_loan(100), Assumptions{.prepay = constant(1.0), .default_rate = constant(0)}, o);
+  EXPECT_EQ(all_at_once.pool.months, 1);
+  EXPECT_EQ(all_at_once.loans.last_month[0], 1);
+  EXPECT_NEAR(all_at_once.pool.total_principal[0], 500'000, 1e-6);
+  // A total loss liquidates with no cash: the table still shows the liquidation month, while the
+  // loan's last month with cash is its last payment.
+  const Assumptions total_loss{.prepay = constant(0),
+                               .default_rate = constant(0.02),
+                               .severity = constant(1.0),
+                               .lag_months = 12};
+  const Projection p = project_pool(one_loan(100), total_loss, o);
+  EXPECT_EQ(p.pool.months, 112);
+  EXPECT_EQ(p.loans.last_month[0], 100);
+  EXPECT_GT(p.pool.loss[111], 0.0);
+  EXPECT_EQ(p.pool.cash_flow[111], 0.0);
+}
+
+TEST(TableLength, EmptyTapeGivesAnEmptyTable) {
+  const Projection p = project_pool(LoanArrays{}, Assumptions{});
+  EXPECT_EQ(p.pool.months, 0);
+  EXPECT_EQ(p.pool.cutoff_balance, 0.0);
+  expect_sized(p.pool);
+}
+
+TEST(Discount, FactorsMustCoverEveryMonth) {
+  std::vector<double> discount(101, 1.0);  // [0] unused, months 1..100
+  ProjectionOptions o;
+  o.loan_totals = true;
+  o.discount = discount;
+  const Assumptions no_lag{.prepay = constant(0), .default_rate = constant(0), .lag_months = 0};
+  const Projection p = project_pool(one_loan(100), no_lag, o);
+  ASSERT_EQ(p.pool.months, 100);
+  ASSERT_EQ(p.loans.present_value.size(), 1u);
+  // identity: discount factors of 1 give the undiscounted cash
+  EXPECT_NEAR(p.loans.present_value[0], p.loans.cash_flow[0], 1e-9 * p.loans.cash_flow[0]);
+  o.discount = std::span<const double>(discount).first(100);  // month 100 missing
+  EXPECT_THROW(project_pool(one_loan(100), no_lag, o), std::invalid_argument);
+  // with defaults the table runs 12 months longer, and so must the factors
+  o.discount = discount;
+  const Assumptions defaults{.prepay = constant(0), .default_rate = constant(0.02), .lag_months = 12};
+  EXPECT_THROW(project_pool(one_loan(100), defaults, o), std::invalid_argument);
+}
+
+TEST(Discount, AdvancesAreDiscountedInTheMonthsTheyArePaid) {
+  // Present value of a loan with advancing = its own cash flows discounted month by month.
+  std::vector<double> discount(1 + 112);
+  for (std::size_t t = 0; t < discount.size(); ++t)
+    discount[t] = std::pow(1.004, -static_cast<double>(t));
+  ProjectionOptions o;
+  o.loan_totals = true;
+  o.discount = discount;
+  const Assumptions a{.prepay = constant(0.06),
+                      .default_rate = constant(0.05),
+                      .severity = constant(0.35),
+                      .lag_months = 12,
+                      .advancing = Advancing::interest};
+  const Projection p = project_pool(one_loan(100), a, o);
+  ASSERT_EQ(p.pool.months, 112);
+  double pv = 0;
+  for (int t = 1; t <= 112; ++t) pv += p.pool.cash_flow[t - 1] * discount[t];
+  EXPECT_NEAR(p.loans.present_value[0], pv, 1e-9 * pv);  // identity: PV = sum cash_t DF_t
+}
+
+}  // namespace
+}  // namespace poolbid
