@@ -11,7 +11,11 @@
 #include <optional>
 #include <sstream>
 #include <string>
+#include <utility>
+#include <vector>
 
+#include "cashflow/cashflow.h"
+#include "curves/curves.h"
 #include "report/report.h"
 #include "tape/tape.h"
 
@@ -44,28 +48,52 @@ struct WriteError : std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
-// Writes a file through a temporary `PATH.partial` renamed into place, so a failure leaves no
-// partial file. `write` fills the stream. Throws WriteError naming the file.
-void write_file_whole(const std::string& path, const std::function<void(std::ostream&)>& write) {
-  const std::string temp = path + ".partial";
+// Files written through a temporary `PATH.partial` each and renamed into place only when every one
+// was written, so a failure leaves no partial file and no file without its companions. `write`
+// fills a file's stream. Throws WriteError naming the file.
+struct OutputFile {
+  std::string path;
+  std::function<void(std::ostream&)> write;
+};
+
+void write_files_whole(const std::vector<OutputFile>& files) {
   std::error_code ignored;
-  {
+  std::vector<std::string> staged;  // temporaries written so far
+  auto remove_all = [&](const std::vector<std::string>& paths) {
+    for (const std::string& p : paths) std::filesystem::remove(p, ignored);
+  };
+  for (const OutputFile& file : files) {
+    const std::string temp = file.path + ".partial";
     std::ofstream out(temp, std::ios::binary | std::ios::trunc);
-    if (!out) throw WriteError(fmt::format("cannot write '{}'", path));
-    write(out);
+    if (!out) {
+      remove_all(staged);
+      throw WriteError(fmt::format("cannot write '{}'", file.path));
+    }
+    staged.push_back(temp);
+    file.write(out);
     out.flush();
     if (!out) {
       out.close();
-      std::filesystem::remove(temp, ignored);
-      throw WriteError(fmt::format("cannot write '{}' (disk full?)", path));
+      remove_all(staged);
+      throw WriteError(fmt::format("cannot write '{}' (disk full?)", file.path));
     }
   }
-  std::error_code ec;
-  std::filesystem::rename(temp, path, ec);
-  if (ec) {
-    std::filesystem::remove(temp, ignored);
-    throw WriteError(fmt::format("cannot write '{}': {}", path, ec.message()));
+  std::vector<std::string> renamed;  // in place already; removed again if a later rename fails
+  for (std::size_t i = 0; i < files.size(); ++i) {
+    std::error_code ec;
+    std::filesystem::rename(staged[i], files[i].path, ec);
+    if (ec) {
+      remove_all(renamed);
+      remove_all(std::vector<std::string>(staged.begin() + static_cast<std::ptrdiff_t>(i),
+                                          staged.end()));
+      throw WriteError(fmt::format("cannot write '{}': {}", files[i].path, ec.message()));
+    }
+    renamed.push_back(files[i].path);
   }
+}
+
+void write_file_whole(const std::string& path, const std::function<void(std::ostream&)>& write) {
+  write_files_whole({OutputFile{path, write}});
 }
 
 // Writes a whole document to standard output. Throws WriteError if it did not all get there
@@ -115,13 +143,150 @@ struct TapeArgs {
   }
 };
 
+// Options of `poolbid cashflows` beyond the tape's.
+struct CashflowArgs {
+  TapeArgs tape;
+  std::string assumptions_file;
+  std::optional<std::string> prepay, default_rate, severity, lag, advancing;
+  bool delinquent_default = false;
+  std::string csv;    // "" = none; "-" = standard output
+  std::string loans;  // "" = none; "-" = standard output (only beside --csv FILE)
+  unsigned threads = 0;
+  int delay_days = 17;  // illustrative (DESIGN.md section 5): cash paid on the 18th
+
+  void add_to(CLI::App& cmd) {
+    tape.add_to(cmd);
+    cmd.get_option("--cutoff")
+        ->description("cut-off date YYYY-MM-01; needed here or in the column map (payment dates)");
+    cmd.add_option("--assumptions", assumptions_file,
+                   "assumptions file (JSON); the options below override it");
+    cmd.add_option("--prepay", prepay,
+                   "prepayment: cpr:8, psa:150, cpr:6,7,8, cpr:2..8/24 (default none)");
+    cmd.add_option("--default", default_rate,
+                   "default: cdr:1.5, sda:200, cdr:0.5,1,1.5, cdr:0..3/36 (default none)");
+    cmd.add_option("--severity", severity,
+                   "loss severity, percent of defaulted balance: 45, 45,40,35, 60..40/24 "
+                   "(default 40)");
+    cmd.add_option("--lag", lag, "months from default to liquidation (default 12)");
+    cmd.add_option("--advancing", advancing,
+                   "what the servicer advances on defaulted loans: none (default) or interest");
+    cmd.add_flag("--delinquent-default", delinquent_default,
+                 "loans 90+ days delinquent or in foreclosure default in month 1");
+    cmd.add_option("--csv", csv, "write the monthly pool table as CSV to FILE ('-': stdout)")
+        ->excludes("--json");
+    cmd.add_option("--loans", loans, "write per-loan lifetime totals as CSV to FILE");
+    cmd.add_option("--threads", threads, "worker threads; 0 = every core (results do not change)")
+        ->check(CLI::Range(0u, 4096u))
+        ->capture_default_str();
+    cmd.add_option("--delay", delay_days,
+                   "payment delay: cash of a month is paid this many days after the first of "
+                   "the next month")
+        ->check(CLI::Range(0, 366))
+        ->capture_default_str();
+  }
+
+  // The assumptions file, if any, then each option given over it. Throws AssumptionError.
+  Assumptions assumptions() const {
+    Assumptions a;
+    if (!assumptions_file.empty()) a = load_assumptions(assumptions_file, a);
+    if (prepay) a.prepay = parse_prepay(*prepay);
+    if (default_rate) a.default_rate = parse_default(*default_rate);
+    if (severity) a.severity = parse_severity(*severity);
+    if (lag) a.lag_months = parse_lag(*lag);
+    if (advancing) a.advancing = parse_advancing(*advancing);
+    if (delinquent_default) a.delinquent_default = true;
+    return a;
+  }
+};
+
+// An output path that would overwrite one of the inputs, or two outputs on one path.
+struct UsageError : std::runtime_error {
+  using std::runtime_error::runtime_error;
+};
+
+// True when both paths name one file, existing or not.
+bool same_file(const std::string& a, const std::string& b) {
+  std::error_code ec_a, ec_b;
+  if (std::filesystem::equivalent(a, b, ec_a) && !ec_a) return true;
+  const std::filesystem::path canonical_a = std::filesystem::weakly_canonical(a, ec_a);
+  const std::filesystem::path canonical_b = std::filesystem::weakly_canonical(b, ec_b);
+  return !ec_a && !ec_b && canonical_a == canonical_b;
+}
+
+void check_outputs(const CashflowArgs& args) {
+  if (args.loans == "-" && (args.csv.empty() || args.csv == "-"))
+    throw UsageError("--loans -: standard output already carries the report; give --loans a "
+                     "file, or --csv a file");
+  const std::vector<std::pair<std::string, std::string>> inputs = {
+      {"the tape", args.tape.tape},
+      {"the column map", args.tape.map},
+      {"the assumptions file", args.assumptions_file}};
+  for (const auto& [option, path] : {std::pair{"--csv", args.csv}, {"--loans", args.loans}}) {
+    if (path.empty() || path == "-") continue;
+    for (const auto& [what, input] : inputs)
+      if (!input.empty() && same_file(path, input))
+        throw UsageError(fmt::format("{} '{}' would overwrite {}", option, path, what));
+  }
+  if (!args.csv.empty() && args.csv != "-" && !args.loans.empty() && args.loans != "-" &&
+      same_file(args.csv, args.loans))
+    throw UsageError(fmt::format("--csv and --loans name one file '{}'", args.csv));
+}
+
+// `poolbid cashflows`: read, project, write. Rejected rows are listed on stderr when stdout carries
+// a CSV table, in the report otherwise; either way the exit code is 3.
+int run_cashflows(const CashflowArgs& args) {
+  check_outputs(args);
+  const ReadOptions read_options = args.tape.read_options();
+  const Assumptions assumptions = args.assumptions();
+  const TapeRead tape = read_tape(args.tape.tape, read_options);
+  if (!tape.cutoff)
+    throw TapeError(ErrorKind::bad_option, tape.file, 0, "--cutoff", "",
+                    fmt::format("{}: no cut-off date; cash flows need one for their payment "
+                                "dates: give --cutoff YYYY-MM-01 or the column map's cutoff_date",
+                                tape.file));
+
+  ProjectionOptions options;
+  options.threads = args.threads;
+  options.loan_totals = !args.loans.empty();
+  const Projection projection = project_pool(tape.loans, assumptions, options);
+  const Date cutoff = *tape.cutoff;
+
+  std::vector<OutputFile> files;
+  std::string document;  // standard output
+  if (args.csv == "-") {
+    document = cashflow_csv(projection.pool, cutoff, args.delay_days);
+  } else if (!args.csv.empty()) {
+    files.push_back({args.csv, [&](std::ostream& out) {
+                       out << cashflow_csv(projection.pool, cutoff, args.delay_days);
+                     }});
+  } else if (args.tape.json) {
+    document = cashflow_json(tape, assumptions, projection.pool, args.delay_days);
+  } else {
+    document = cashflow_text(tape, assumptions, projection.pool, args.delay_days);
+  }
+  if (args.loans == "-") {
+    document = loan_flows_csv(tape.loans, projection.loans);
+  } else if (!args.loans.empty()) {
+    files.push_back({args.loans, [&](std::ostream& out) {
+                       write_loan_flows_csv(out, tape.loans, projection.loans);
+                     }});
+  }
+  write_files_whole(files);
+  if (!document.empty()) write_stdout(document);
+  if (!args.csv.empty()) {
+    const std::string rejects = rejected_rows_text(tape);
+    if (!rejects.empty()) std::fwrite(rejects.data(), 1, rejects.size(), stderr);
+  }
+  return tape.rows_rejected > 0 ? kRowsRejected : kOk;
+}
+
 int finish_tape_command(const TapeRead& tape, const std::string& document) {
   write_stdout(document);
   return tape.rows_rejected > 0 ? kRowsRejected : kOk;
 }
 
 int run(int argc, char** argv) {
-  CLI::App app{"poolbid: check and stratify a residential mortgage loan tape.\n"
+  CLI::App app{"poolbid: check, stratify and project a residential mortgage loan tape.\n"
                "Results are estimates under stated assumptions, not investment advice."};
   app.require_subcommand(1);
   app.set_version_flag("--version", "poolbid 0.1.0");
@@ -133,6 +298,11 @@ int run(int argc, char** argv) {
   TapeArgs strats_args;
   CLI::App* strats = app.add_subcommand("strats", "stratify the accepted loans of a tape");
   strats_args.add_to(*strats);
+
+  CashflowArgs cashflow_args;
+  CLI::App* cashflows = app.add_subcommand(
+      "cashflows", "project the accepted loans' monthly cash flows under stated assumptions");
+  cashflow_args.add_to(*cashflows);
 
   DemoTapeOptions demo;
   std::string demo_out;
@@ -167,6 +337,7 @@ int run(int argc, char** argv) {
       return finish_tape_command(
           tape, strats_args.json ? strats_json(tape, s) : strats_text(tape, s));
     }
+    if (*cashflows) return run_cashflows(cashflow_args);
     if (*demo_cmd) {
       demo.profile = demo_profile == "loose" ? DemoProfile::loose : DemoProfile::strict;
       demo.layout = demo_layout == "seller-coded" ? DemoLayout::seller_coded
@@ -183,6 +354,12 @@ int run(int argc, char** argv) {
   } catch (const TapeError& e) {
     fmt::print(stderr, "poolbid: {}\n", e.what());
     return exit_code_for(e);
+  } catch (const AssumptionError& e) {
+    fmt::print(stderr, "poolbid: {}\n", e.what());
+    return kUnusableInput;
+  } catch (const UsageError& e) {
+    fmt::print(stderr, "poolbid: {}\n", e.what());
+    return kUsage;
   } catch (const WriteError& e) {
     fmt::print(stderr, "poolbid: {}\n", e.what());
     return kCannotWrite;

@@ -24,7 +24,7 @@ struct CouponPaths {
 struct ProjectionOptions {
   // Worker threads; 0 = every core. Results do not depend on it.
   unsigned threads = 0;
-  // Fill Projection::loans with one row of lifetime totals per loan. Costs memory and ~20% time.
+  // Fill Projection::loans with one row of lifetime totals per loan (13 numbers a loan; slower).
   bool loan_totals = false;
   // Discount factor for the cash of each projection month (index t = month t; [0] unused). If
   // given and loan_totals is set, each loan's present value is filled. It must cover the longest

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# The demo: check and stratify both demo sellers' tapes, then show `check` on the bad tape.
+# The demo: check, stratify and project both demo sellers' tapes, then show `check` on the bad tape.
 # Usage: demo-pools/demo.sh [path/to/poolbid]   (default: build/poolbid)
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
@@ -16,6 +16,15 @@ say "Sallowmere Funding (loose underwriting, its own headers, read through a col
 "$poolbid" check "$here/sallowmere-loose.csv" --map "$here/sallowmere.map.json"
 say "Sallowmere Funding (loose underwriting): strats"
 "$poolbid" strats "$here/sallowmere-loose.csv" --map "$here/sallowmere.map.json"
+
+# Illustrative assumptions, not a forecast. The curves are pool-wide (they do not read a loan's
+# credit), so the loosely underwritten pool is given the heavier default curve by hand.
+say "Brindlecote Home Loans: cash flows at 150% PSA prepayment, 100% SDA default, 40% severity, 12-month lag"
+"$poolbid" cashflows "$here/brindlecote-strict.csv" --cutoff 2026-12-01 \
+  --prepay psa:150 --default sda:100 --severity 40 --lag 12
+say "Sallowmere Funding: the same, but 200% SDA default for the looser underwriting (cut-off from its map)"
+"$poolbid" cashflows "$here/sallowmere-loose.csv" --map "$here/sallowmere.map.json" \
+  --prepay psa:150 --default sda:200 --severity 40 --lag 12
 
 say "A tape with planted mistakes: every bad row is listed, none dropped (exit code 3)"
 status=0

@@ -1,14 +1,23 @@
-// Report: turns a checked tape and its strats into text for a terminal or JSON for a program.
-// Functions return the whole document as a string, so a caller writes all of it or nothing.
+// Report: turns a checked tape, its strats and its projected cash flows into text for a terminal,
+// JSON for a program and CSV for a spreadsheet. Functions return the whole document as a string,
+// so a caller writes all of it or nothing; the per-loan CSV can also be streamed.
 #pragma once
 
+#include <chrono>
+#include <iosfwd>
 #include <string>
 #include <string_view>
 
 namespace poolbid {
 
+using Date = std::chrono::year_month_day;  // as in tape/tape.h
+
 struct TapeRead;
 struct Strats;
+struct LoanArrays;
+struct Assumptions;
+struct PoolFlows;
+struct LoanFlows;
 
 // `poolbid check`: rows read / accepted / rejected / with warnings, UPB accepted and rejected,
 // file-level notes, then every problem (row, loan id, column, value, reason).
@@ -19,6 +28,38 @@ std::string check_json(const TapeRead& tape);
 // stratification; a short account of rejected rows (the full list is `check`'s).
 std::string strats_text(const TapeRead& tape, const Strats& strats);
 std::string strats_json(const TapeRead& tape, const Strats& strats);
+
+// `poolbid cashflows`. Cash of collection month t reaches the investor `delay_days` after the
+// first day of month t + 1 (DESIGN.md section 5); tape.cutoff must be set (std::invalid_argument
+// otherwise). Columns, keys and units are documented in the README and are a public interface.
+//
+// The monthly pool table as CSV: the header line, then one line per month 1..pool.months. Dates
+// ISO, dollars to the cent, smm and mdr decimals (10 places), cpr, cdr and cum_loss_pct percent
+// (6 places). Plain commas, "\n" line ends, no quoting needed.
+std::string cashflow_csv(const PoolFlows& pool, Date cutoff, int delay_days);
+inline constexpr std::string_view kCashflowCsvHeader =
+    "month,date,begin_balance,sched_principal,prepayment,default,loss,recovery,gross_interest,"
+    "servicing,net_interest,total_principal,cash_flow,end_balance,smm,mdr,cpr,cdr,cum_loss_pct";
+// Lifetime totals per loan as CSV, one line per loan in tape order; loan ids and seller names
+// quoted as RFC 4180 says when they hold a comma, a quote or a line break.
+std::string loan_flows_csv(const LoanArrays& loans, const LoanFlows& flows);
+void write_loan_flows_csv(std::ostream& out, const LoanArrays& loans, const LoanFlows& flows);
+inline constexpr std::string_view kLoanFlowsCsvHeader =
+    "loan_id,row,seller,cutoff_balance,sched_principal,prepayment,default,loss,recovery,"
+    "gross_interest,servicing,net_interest,advanced_interest,cash_flow,wal_years,last_month";
+// Terminal report: the assumptions, pool totals, the months 1-12 then every 12th and the last,
+// every rejected row, the caution.
+std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
+                          const PoolFlows& pool, int delay_days);
+// {"file", "cutoff_date", "payment_delay_days", "assumptions", "summary", "months", "rejected",
+//  "caution"}; "months" entries have the CSV's keys, numbers unrounded.
+std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
+                          const PoolFlows& pool, int delay_days);
+
+// Every rejecting problem of a tape, one line each (row, loan id, column, value, reason), under
+// a line counting the rows; "" when no row was rejected. For standard error when the standard
+// output carries a table.
+std::string rejected_rows_text(const TapeRead& tape);
 
 // The caution every report carries.
 std::string_view caution_text();

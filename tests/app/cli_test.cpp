@@ -1,5 +1,6 @@
 // The `poolbid` command run as a user runs it: exit codes, what goes to stdout and stderr, JSON
-// that parses, files written whole or not at all, and the README's test command matching CI's.
+// that parses, files written whole or not at all, cash-flow tables and the README's test command
+// matching CI's.
 #include <gtest/gtest.h>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -13,6 +14,7 @@
 #include <set>
 #include <sstream>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "tests/support/run_poolbid.h"
@@ -326,6 +328,298 @@ TEST_F(Cli, DemoTapeOutOntoAFolderExitsSixAndLeavesNothing) {
   for (const fs::directory_entry& e : fs::directory_iterator(scratch_))
     names.insert(e.path().filename().string());
   EXPECT_EQ(names, (std::set<std::string>{"a-folder"}));
+}
+
+// ---- Cash flows ---------------------------------------------------------------------------------
+
+// The demo tapes' cut-off (demo-pools/README.md); the strict tape does not carry it.
+const std::string kDemoCutoff = "2026-12-01";
+const std::vector<std::string> kCashflows = {"cashflows", kStrict, "--cutoff", kDemoCutoff,
+                                             "--prepay", "psa:150", "--default", "cdr:1"};
+// The monthly table's columns: a public interface (README).
+const std::string kCashflowHeader =
+    "month,date,begin_balance,sched_principal,prepayment,default,loss,recovery,gross_interest,"
+    "servicing,net_interest,total_principal,cash_flow,end_balance,smm,mdr,cpr,cdr,cum_loss_pct";
+const std::string kLoansHeader =
+    "loan_id,row,seller,cutoff_balance,sched_principal,prepayment,default,loss,recovery,"
+    "gross_interest,servicing,net_interest,advanced_interest,cash_flow,wal_years,last_month";
+
+std::vector<std::string> lines_of(const std::string& text) {
+  std::vector<std::string> lines;
+  std::istringstream in(text);
+  for (std::string line; std::getline(in, line);) lines.push_back(line);
+  return lines;
+}
+
+std::size_t cells_in(const std::string& line) {
+  return static_cast<std::size_t>(std::count(line.begin(), line.end(), ',')) + 1;
+}
+
+// Every file in `folder`, by name.
+std::set<std::string> names_in(const fs::path& folder) {
+  std::set<std::string> names;
+  for (const fs::directory_entry& e : fs::directory_iterator(folder))
+    names.insert(e.path().filename().string());
+  return names;
+}
+
+TEST_F(Cli, CashflowsCsvHasNineteenColumnsAndOneRowPerMonth) {
+  const fs::path csv = scratch_ / "pool.csv";
+  const Outcome r = poolbid(with(kCashflows, {"--csv", csv.string()}));
+  ASSERT_EQ(r.exit_code, kOk) << r;
+  EXPECT_EQ(r.out, "");
+  EXPECT_EQ(r.err, "");
+  const std::string text = read_file(csv);
+  const std::vector<std::string> lines = lines_of(text);
+  ASSERT_GE(lines.size(), 2u);
+  EXPECT_EQ(lines[0], kCashflowHeader);
+  for (const std::string& line : lines) EXPECT_EQ(cells_in(line), 19u) << line;
+  EXPECT_EQ(lines[1].substr(0, 13), "1,2027-01-18,");  // paid on the 18th of the next month
+  EXPECT_EQ(text.back(), '\n');
+  EXPECT_EQ(text.find('\r'), std::string::npos);
+  EXPECT_EQ(names_in(scratch_), (std::set<std::string>{"pool.csv"}));  // no .partial left
+
+  // As many rows as the JSON document's months, which number the months 1, 2, ...
+  const Outcome j = poolbid(with(kCashflows, {"--json"}));
+  ASSERT_EQ(j.exit_code, kOk) << j;
+  const json doc = json::parse(j.out);
+  const std::size_t months = doc.at("summary").at("months").get<std::size_t>();
+  EXPECT_EQ(lines.size(), months + 1);
+  EXPECT_GE(months, 340u);  // 30-year loans about 10 months old at cut-off
+  ASSERT_EQ(doc.at("months").size(), months);
+  for (std::size_t t = 1; t <= months; ++t) {
+    EXPECT_EQ(doc["months"][t - 1]["month"], t);
+    EXPECT_EQ(lines[t].substr(0, lines[t].find(',')), std::to_string(t));
+  }
+
+  // `--csv -` writes the same bytes to standard output.
+  const Outcome to_stdout = poolbid(with(kCashflows, {"--csv", "-"}));
+  ASSERT_EQ(to_stdout.exit_code, kOk) << to_stdout;
+  EXPECT_EQ(to_stdout.out, text);
+}
+
+TEST_F(Cli, CashflowsCsvReadsWithPythonsCsvModule) {
+  if (!fs::exists("/usr/bin/python3")) GTEST_SKIP() << "no /usr/bin/python3";
+  const fs::path csv = scratch_ / "pool.csv", loans = scratch_ / "loans.csv";
+  ASSERT_EQ(poolbid(with(kCashflows, {"--csv", csv.string(), "--loans", loans.string()}))
+                .exit_code,
+            kOk);
+  // Every row 19 cells (16 for loans); every cell after the loan id, seller and date a number.
+  const std::string script =
+      "import csv, sys\n"
+      "def check(path, width, text_cells):\n"
+      "    with open(path, newline='') as f:\n"
+      "        rows = list(csv.reader(f))\n"
+      "    assert all(len(r) == width for r in rows), path\n"
+      "    for r in rows[1:]:\n"
+      "        for i, cell in enumerate(r):\n"
+      "            if i not in text_cells:\n"
+      "                float(cell)\n"
+      "    return len(rows) - 1\n"
+      "print(check(sys.argv[1], 19, {1}), check(sys.argv[2], 16, {0, 2}))\n";
+  const fs::path script_file = scratch_ / "check.py", out = scratch_ / "out.txt";
+  {
+    std::ofstream(script_file) << script;
+  }
+  const std::string command = "/usr/bin/python3 " + shell_quoted(script_file.string()) + " " +
+                              shell_quoted(csv.string()) + " " + shell_quoted(loans.string()) +
+                              " >" + shell_quoted(out.string()) + " 2>&1";
+  const int status = std::system(command.c_str());
+  ASSERT_TRUE(WIFEXITED(status) && WEXITSTATUS(status) == 0) << read_file(out);
+  std::istringstream counts(read_file(out));
+  std::size_t months = 0, loan_rows = 0;
+  counts >> months >> loan_rows;
+  EXPECT_EQ(months + 1, lines_of(read_file(csv)).size());
+  EXPECT_EQ(loan_rows, 2000u);  // demo-pools/README.md: 2,000 loans, all accepted
+}
+
+TEST_F(Cli, CashflowsBadPrepayExitsFiveAndWritesNothing) {
+  const fs::path csv = scratch_ / "pool.csv";
+  std::vector<std::string> args = {"cashflows", kStrict,   "--cutoff", kDemoCutoff,
+                                   "--prepay",  "psb:150", "--csv",    csv.string()};
+  const Outcome r = poolbid(args);
+  EXPECT_EQ(r.exit_code, kUnusableInput) << r;
+  EXPECT_EQ(r.out, "");
+  EXPECT_EQ(line_count(r.err), 1u) << r.err;
+  EXPECT_NE(r.err.find("--prepay"), std::string::npos) << r.err;
+  EXPECT_NE(r.err.find("psb:150"), std::string::npos) << r.err;
+  EXPECT_TRUE(fs::is_empty(scratch_)) << "a file was written";
+
+  // Each assumption option names itself and its value.
+  const std::vector<std::pair<std::string, std::string>> bad = {
+      {"--default", "cdr:x"}, {"--severity", "140"},     {"--lag", "-3"},
+      {"--advancing", "all"}, {"--prepay", "cpr:2..8/0"}};
+  for (const auto& [option, value] : bad) {
+    const Outcome b = poolbid({"cashflows", kStrict, "--cutoff", kDemoCutoff, option, value});
+    EXPECT_EQ(b.exit_code, kUnusableInput) << option << " " << value << "\n" << b;
+    EXPECT_EQ(b.out, "");
+    EXPECT_NE(b.err.find(option), std::string::npos) << b.err;
+    EXPECT_NE(b.err.find(value), std::string::npos) << b.err;
+  }
+}
+
+TEST_F(Cli, CashflowsBadTapeExitsThreeListsRejectsAndWritesTheTable) {
+  const fs::path csv = scratch_ / "pool.csv", loans = scratch_ / "loans.csv";
+  const Outcome r = poolbid({"cashflows", kBadTape, "--cutoff", kDemoCutoff, "--prepay",
+                             "psa:150", "--default", "cdr:1", "--csv", csv.string(), "--loans",
+                             loans.string()});
+  ASSERT_EQ(r.exit_code, kRowsRejected) << r;
+  EXPECT_EQ(r.out, "");
+  // Every rejected row on standard error: a line starting with its row number.
+  std::set<std::size_t> listed;
+  for (const std::string& line : lines_of(r.err)) {
+    std::size_t row = 0;
+    if (std::istringstream(line) >> row) listed.insert(row);
+  }
+  EXPECT_EQ(listed, kBadTapeRejectedRows) << r.err;
+  EXPECT_NE(r.err.find("14 rows rejected"), std::string::npos) << r.err;
+  // The outputs hold the accepted loans.
+  const std::vector<std::string> table = lines_of(read_file(csv));
+  ASSERT_GE(table.size(), 2u);
+  EXPECT_EQ(table[0], kCashflowHeader);
+  EXPECT_EQ(lines_of(read_file(loans)).size(), 1 + 40u - kBadTapeRejectedRows.size());
+
+  // The JSON document carries them; the text report lists them. Both exit 3, stderr quiet.
+  const Outcome j = poolbid({"cashflows", kBadTape, "--cutoff", kDemoCutoff, "--json"});
+  ASSERT_EQ(j.exit_code, kRowsRejected) << j;
+  EXPECT_EQ(j.err, "");
+  const json doc = json::parse(j.out);
+  std::set<std::size_t> in_json;
+  for (const json& p : doc.at("rejected")) in_json.insert(p.at("row").get<std::size_t>());
+  EXPECT_EQ(in_json, kBadTapeRejectedRows);
+  EXPECT_EQ(doc.at("summary").at("loans"), 40u - kBadTapeRejectedRows.size());
+
+  const Outcome t = poolbid({"cashflows", kBadTape, "--cutoff", kDemoCutoff});
+  ASSERT_EQ(t.exit_code, kRowsRejected) << t;
+  EXPECT_EQ(t.err, "");
+  const std::size_t section = t.out.find("rejected rows: 14 rows rejected");
+  ASSERT_NE(section, std::string::npos) << t.out;
+  std::set<std::size_t> in_text;
+  for (const std::string& line : lines_of(t.out.substr(section))) {
+    if (line.rfind("  ", 0) != 0) continue;  // the table's lines are indented
+    std::size_t row = 0;
+    if (std::istringstream(line) >> row) in_text.insert(row);
+  }
+  EXPECT_EQ(in_text, kBadTapeRejectedRows) << t.out;
+}
+
+TEST_F(Cli, CashflowsOutputsDoNotDependOnThreads) {
+  std::vector<std::string> files;
+  for (const std::string threads : {"1", "2", "0"}) {
+    const fs::path csv = scratch_ / ("pool-" + threads + ".csv");
+    const fs::path loans = scratch_ / ("loans-" + threads + ".csv");
+    const Outcome r = poolbid(with(kCashflows, {"--severity", "45", "--lag", "6", "--advancing",
+                                                "interest", "--threads", threads, "--csv",
+                                                csv.string(), "--loans", loans.string()}));
+    ASSERT_EQ(r.exit_code, kOk) << r;
+    files.push_back(read_file(csv) + read_file(loans));
+  }
+  EXPECT_FALSE(files[0].empty());
+  EXPECT_TRUE(files[0] == files[1]) << "--threads 1 and 2 differ";
+  EXPECT_TRUE(files[0] == files[2]) << "--threads 1 and 0 (every core) differ";
+}
+
+TEST_F(Cli, CashflowsLoansCsvHasOneRowPerAcceptedLoan) {
+  const fs::path loans = scratch_ / "loans.csv";
+  const Outcome r = poolbid({"cashflows", kLoose, "--map", kLooseMap, "--prepay", "cpr:8",
+                             "--loans", loans.string()});
+  ASSERT_EQ(r.exit_code, kOk) << r;  // the map gives the cut-off
+  EXPECT_NE(r.out.find("poolbid cashflows"), std::string::npos) << r;  // the text report
+  const std::vector<std::string> lines = lines_of(read_file(loans));
+  ASSERT_EQ(lines.size(), 2001u);  // header + 2,000 loans (demo-pools/README.md)
+  EXPECT_EQ(lines[0], kLoansHeader);
+  EXPECT_EQ(lines[1].rfind("SMF-000001,2,", 0), 0u) << lines[1];  // tape order, tape row
+  EXPECT_EQ(lines[2000].rfind("SMF-002000,2001,", 0), 0u) << lines[2000];
+  for (const std::string& line : lines) EXPECT_EQ(cells_in(line), 16u) << line;
+}
+
+TEST_F(Cli, CashflowsJsonHasTheDocumentedKeys) {
+  const Outcome r = poolbid(with(kCashflows, {"--json", "--delay", "24"}));
+  ASSERT_EQ(r.exit_code, kOk) << r;
+  EXPECT_EQ(r.err, "");
+  const json doc = json::parse(r.out);
+  for (const char* key : {"file", "cutoff_date", "payment_delay_days", "assumptions", "summary",
+                          "months", "rejected", "caution"})
+    EXPECT_TRUE(doc.contains(key)) << key;
+  EXPECT_EQ(doc["cutoff_date"], kDemoCutoff);
+  EXPECT_EQ(doc["payment_delay_days"], 24);
+  EXPECT_EQ(doc["assumptions"]["prepay"], "psa:150");
+  EXPECT_EQ(doc["assumptions"]["default"], "cdr:1");
+  EXPECT_EQ(doc["summary"]["loans"], 2000);
+  EXPECT_TRUE(doc["rejected"].empty());
+  ASSERT_FALSE(doc["months"].empty());
+  EXPECT_EQ(doc["months"][0]["date"], "2027-01-25");
+  std::vector<std::string> keys;
+  for (const auto& [key, value] : doc["months"][0].items()) keys.push_back(key);
+  std::vector<std::string> header;
+  std::istringstream cells(kCashflowHeader);
+  for (std::string cell; std::getline(cells, cell, ',');) header.push_back(cell);
+  std::sort(header.begin(), header.end());
+  EXPECT_EQ(keys, header);  // json sorts its keys
+}
+
+TEST_F(Cli, CashflowsAssumptionsFileThenOptionsOverIt) {
+  const fs::path file = scratch_ / "assumptions.json";
+  std::ofstream(file) << R"({"prepay": "psa:200", "default": "sda:100", "severity": 50,
+                              "lag_months": 9, "advancing": "interest"})";
+  const Outcome r = poolbid({"cashflows", kStrict, "--cutoff", kDemoCutoff, "--assumptions",
+                             file.string(), "--severity", "30", "--json"});
+  ASSERT_EQ(r.exit_code, kOk) << r;
+  const json a = json::parse(r.out).at("assumptions");
+  EXPECT_EQ(a["prepay"], "psa:200");
+  EXPECT_EQ(a["default"], "sda:100");
+  EXPECT_EQ(a["severity"], "30");  // the option wins
+  EXPECT_EQ(a["lag_months"], 9);
+  EXPECT_EQ(a["advancing"], "interest");
+
+  std::ofstream(scratch_ / "bad.json") << R"({"prepay": "psa:200", "speed": 3})";
+  const Outcome bad = poolbid({"cashflows", kStrict, "--cutoff", kDemoCutoff, "--assumptions",
+                               (scratch_ / "bad.json").string()});
+  EXPECT_EQ(bad.exit_code, kUnusableInput) << bad;
+  EXPECT_EQ(bad.out, "");
+  EXPECT_NE(bad.err.find("bad.json"), std::string::npos) << bad.err;
+  EXPECT_NE(bad.err.find("speed"), std::string::npos) << bad.err;
+  expect_one_error_line(poolbid({"cashflows", kStrict, "--cutoff", kDemoCutoff, "--assumptions",
+                                 "demo-pools/no-such.json"}),
+                        "demo-pools/no-such.json", kUnusableInput);
+}
+
+TEST_F(Cli, CashflowsWithoutACutoffExitsFive) {
+  const Outcome r = poolbid({"cashflows", kStrict, "--csv", (scratch_ / "pool.csv").string()});
+  expect_one_error_line(r, kStrict, kUnusableInput);
+  EXPECT_NE(r.err.find("--cutoff"), std::string::npos) << r.err;
+  EXPECT_TRUE(fs::is_empty(scratch_));
+}
+
+TEST_F(Cli, CashflowsUnwritableSecondOutputLeavesNoFile) {
+  const fs::path csv = scratch_ / "pool.csv";
+  const fs::path loans = scratch_ / "no-such-folder" / "loans.csv";
+  const Outcome r = poolbid(with(kCashflows, {"--csv", csv.string(), "--loans", loans.string()}));
+  expect_one_error_line(r, loans.string(), kCannotWrite);
+  EXPECT_TRUE(fs::is_empty(scratch_)) << "left behind: " << *names_in(scratch_).begin();
+}
+
+TEST_F(Cli, CashflowsUsageErrorsExitTwo) {
+  const std::string csv = (scratch_ / "pool.csv").string();
+  const std::vector<std::vector<std::string>> cases = {
+      with(kCashflows, {"--csv", csv, "--json"}),
+      with(kCashflows, {"--loans", "-"}),
+      with(kCashflows, {"--csv", csv, "--loans", csv}),
+      with(kCashflows, {"--csv", kStrict}),  // would overwrite the tape
+      with(kCashflows, {"--threads", "-1"}),
+      with(kCashflows, {"--delay", "x"}),
+      {"cashflows"},
+  };
+  for (const std::vector<std::string>& args : cases) {
+    const Outcome r = poolbid(args);
+    std::string shown;
+    for (const std::string& a : args) shown += " " + a;
+    EXPECT_EQ(r.exit_code, kUsage) << "poolbid" << shown << "\n" << r;
+    EXPECT_EQ(r.out, "") << shown;
+    EXPECT_NE(r.err, "") << shown;
+  }
+  EXPECT_TRUE(fs::is_empty(scratch_));
+  EXPECT_EQ(read_file(kSource / kStrict).substr(0, 8), "loan_id,");
 }
 
 // ---- The README and CI run one command ----------------------------------------------------------

@@ -1,0 +1,506 @@
+// `poolbid cashflows` reports: the monthly pool table as CSV, per-loan lifetime totals as CSV, and
+// a terminal text report and a JSON document carrying the assumptions, totals, months and rejects.
+// Units: dollars; smm and mdr decimals per month; cpr, cdr and cum_loss_pct percent. CSV rounds
+// dollars to the cent; JSON gives numbers unrounded.
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <iterator>
+#include <ostream>
+#include <stdexcept>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include <fmt/compile.h>
+#include <fmt/core.h>
+#include <fmt/format.h>
+
+#include "cashflow/cashflow.h"
+#include "curves/curves.h"
+#include "report/format.h"
+#include "report/report.h"
+#include "tape/tape.h"
+
+namespace poolbid {
+namespace {
+
+using detail::Align;
+using detail::Json;
+
+using detail::count_text;
+using detail::kLoanIdWidth;
+using detail::kValueWidth;
+
+using Buffer = fmt::memory_buffer;
+
+constexpr int kMoneyDecimals = 2;     // dollars to the cent
+constexpr int kMonthlyDecimals = 10;  // smm, mdr: decimals per month
+constexpr int kPercentDecimals = 6;   // cpr, cdr, cum_loss_pct: percent
+constexpr int kWalDecimals = 4;       // years
+// Loans CSV: rows are formatted into memory and handed to the stream in pieces of about this.
+constexpr std::size_t kStreamChunkBytes = std::size_t{1} << 20;
+
+// x to `decimals` places (0 to 12); a value that rounds to zero is "0.00", never "-0.00"; an
+// empty cell when x is NaN or infinite (a spreadsheet shows a blank, pandas reads NaN).
+void put_fixed(Buffer& out, double x, int decimals) {
+  static constexpr std::array<double, 13> kHalfUnit = {
+      0.5, 0.05, 5e-3, 5e-4, 5e-5, 5e-6, 5e-7, 5e-8, 5e-9, 5e-10, 5e-11, 5e-12, 5e-13};
+  if (!std::isfinite(x)) return;
+  if (std::fabs(x) < kHalfUnit[static_cast<std::size_t>(decimals)]) x = 0.0;
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{:.{}f}"), x, decimals);
+}
+
+// Dollars to the cent, as whole cents (round half away from zero): the loans CSV writes a million
+// lines of these, and integer formatting is several times faster than fixed-point.
+void put_money(Buffer& out, double x) {
+  if (!std::isfinite(x)) return;
+  if (!(std::fabs(x) < 1e15)) {  // beyond exact cents in a double; never a loan's
+    put_fixed(out, x, kMoneyDecimals);
+    return;
+  }
+  const long long cents = std::llround(x * 100);
+  if (cents < 0) out.push_back('-');
+  const unsigned long long magnitude =
+      cents < 0 ? 0ULL - static_cast<unsigned long long>(cents)
+                : static_cast<unsigned long long>(cents);
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{}.{:02}"), magnitude / 100,
+                 magnitude % 100);
+}
+
+// A CSV cell as RFC 4180 writes it: quoted, with quotes doubled, when it holds a comma, a quote
+// or a line break; as is otherwise.
+void put_csv_text(Buffer& out, std::string_view text) {
+  if (text.find_first_of(",\"\r\n") == std::string_view::npos) {
+    out.append(text);
+    return;
+  }
+  out.push_back('"');
+  for (char ch : text) {
+    if (ch == '"') out.push_back('"');
+    out.push_back(ch);
+  }
+  out.push_back('"');
+}
+
+std::string csv_text(std::string_view text) {
+  Buffer out;
+  put_csv_text(out, text);
+  return fmt::to_string(out);
+}
+
+void check_sizes(const PoolFlows& pool) {
+  const auto n = static_cast<std::size_t>(std::max(pool.months, 0));
+  for (const std::vector<double>* v :
+       {&pool.begin_balance, &pool.sched_principal, &pool.prepayment, &pool.defaults, &pool.loss,
+        &pool.recovery, &pool.gross_interest, &pool.servicing, &pool.net_interest,
+        &pool.total_principal, &pool.cash_flow, &pool.end_balance, &pool.smm, &pool.mdr,
+        &pool.cpr, &pool.cdr, &pool.cum_loss_pct}) {
+    if (v->size() < n)
+      throw std::invalid_argument(
+          fmt::format("pool flows: a column has {} months, fewer than the {} stated", v->size(),
+                      n));
+  }
+}
+
+Date cutoff_of(const TapeRead& tape) {
+  if (!tape.cutoff)
+    throw std::invalid_argument("cash-flow report: the tape has no cut-off date");
+  return *tape.cutoff;
+}
+
+// ---- Pool totals --------------------------------------------------------------------------------
+
+double total(const std::vector<double>& by_month, int months) {
+  double sum = 0;
+  for (int t = 0; t < months; ++t) sum += by_month[static_cast<std::size_t>(t)];
+  return sum;
+}
+
+struct PoolTotals {
+  double sched_principal, prepayment, defaults, loss, recovery, gross_interest, servicing,
+      net_interest, advanced_interest, total_principal, cash_flow, cum_loss_pct;
+};
+
+PoolTotals totals(const PoolFlows& p) {
+  const int n = p.months;
+  const bool advanced = p.advanced_interest.size() >= static_cast<std::size_t>(std::max(n, 0));
+  return PoolTotals{
+      total(p.sched_principal, n),
+      total(p.prepayment, n),
+      total(p.defaults, n),
+      total(p.loss, n),
+      total(p.recovery, n),
+      total(p.gross_interest, n),
+      total(p.servicing, n),
+      total(p.net_interest, n),
+      advanced ? total(p.advanced_interest, n) : 0.0,
+      total(p.total_principal, n),
+      total(p.cash_flow, n),
+      n > 0 ? p.cum_loss_pct[static_cast<std::size_t>(n - 1)] : 0.0,
+  };
+}
+
+// ---- Rejected rows ------------------------------------------------------------------------------
+
+std::string rejects_table(const TapeRead& tape) {
+  detail::TextTable table{{"row", "loan id", "column", "value", "reason"},
+                          {Align::right, Align::left, Align::left, Align::left, Align::left},
+                          {}};
+  for (const RowProblem& p : tape.problems) {
+    if (!p.reject) continue;
+    table.rows.push_back({count_text(p.row),
+                          detail::display_text(p.loan_id, kLoanIdWidth, "(blank)"),
+                          detail::display_text(p.column, kValueWidth, "(whole row)"),
+                          detail::display_text(p.value, kValueWidth, "(blank)"),
+                          detail::display_text(p.reason, 400)});
+  }
+  return detail::render(table);
+}
+
+std::string rejects_heading(const TapeRead& tape) {
+  return fmt::format("{} (UPB {}) not projected",
+                     detail::count_of(tape.rows_rejected, "row rejected", "rows rejected"),
+                     detail::dollars(tape.upb_rejected));
+}
+
+// ---- Text report --------------------------------------------------------------------------------
+
+std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days) {
+  detail::TextTable table{{}, {Align::left, Align::left}, {}};
+  table.rows = {
+      {"prepayment (CPR)", prepay_text(a.prepay)},
+      {"default (CDR)", default_text(a.default_rate)},
+      {"loss severity (% of defaulted balance)", severity_text(a.severity)},
+      {"liquidation lag", detail::count_of(static_cast<std::size_t>(std::max(a.lag_months, 0)),
+                                           "month after default", "months after default")},
+      {"advancing", std::string(to_string(a.advancing))},
+      {"delinquent loans default in month 1",
+       a.delinquent_default ? "yes (90+ days delinquent or in foreclosure at cut-off)"
+                            : "no (they follow the curves)"},
+      {"payment delay",
+       fmt::format("{} (month 1 paid {})", detail::count_of(static_cast<std::size_t>(delay_days),
+                                                             "day", "days"),
+                   detail::iso_date(detail::payment_date(cutoff, 1, delay_days)))},
+  };
+  return detail::render(table);
+}
+
+std::string percent_of_upb(double amount, double upb) {
+  if (!(upb > 0)) return "";
+  return fmt::format("({}% of cut-off UPB)", detail::fixed_or_dash(100 * amount / upb, 4));
+}
+
+std::string summary_text(const TapeRead& tape, const PoolFlows& pool, const Assumptions& a,
+                         Date cutoff, int delay_days) {
+  const PoolTotals t = totals(pool);
+  detail::TextTable table{{}, {Align::left, Align::right, Align::left}, {}};
+  auto money = [&](std::string label, double x, std::string note = {}) {
+    table.rows.push_back({std::move(label), detail::dollars(x), std::move(note)});
+  };
+  table.rows.push_back({"loans projected", count_text(tape.rows_accepted()), ""});
+  money("cut-off UPB", pool.cutoff_balance);
+  table.rows.push_back(
+      {"months", count_text(static_cast<std::size_t>(std::max(pool.months, 0))),
+       pool.months > 0
+           ? fmt::format("(last payment {})",
+                         detail::iso_date(detail::payment_date(cutoff, pool.months, delay_days)))
+           : std::string()});
+  money("scheduled principal", t.sched_principal);
+  money("prepayment", t.prepayment, percent_of_upb(t.prepayment, pool.cutoff_balance));
+  money("defaults", t.defaults, percent_of_upb(t.defaults, pool.cutoff_balance));
+  money("loss", t.loss, percent_of_upb(t.loss, pool.cutoff_balance));
+  money("recovery", t.recovery);
+  money("total principal", t.total_principal);
+  money("gross interest", t.gross_interest);
+  money("servicing", t.servicing);
+  money("net interest", t.net_interest,
+        a.advancing == Advancing::interest ? "(with advanced interest)" : "");
+  if (a.advancing == Advancing::interest) money("advanced interest", t.advanced_interest);
+  money("total cash flow", t.cash_flow);
+  table.rows.push_back({"cumulative loss", detail::fixed_or_dash(t.cum_loss_pct, 4) + "%",
+                        "(of cut-off UPB)"});
+  return detail::render(table);
+}
+
+// Months 1-12, then every 12th month, then the last.
+std::vector<int> months_shown(int months) {
+  std::vector<int> shown;
+  for (int t = 1; t <= months; ++t)
+    if (t <= 12 || t % 12 == 0 || t == months) shown.push_back(t);
+  return shown;
+}
+
+std::string months_text(const PoolFlows& p, Date cutoff, int delay_days) {
+  detail::TextTable table{
+      {"month", "paid", "begin balance", "sched principal", "prepayment", "default", "loss",
+       "recovery", "net interest", "cash flow", "CPR %", "CDR %", "cum loss %"},
+      {Align::right, Align::left, Align::right, Align::right, Align::right, Align::right,
+       Align::right, Align::right, Align::right, Align::right, Align::right, Align::right,
+       Align::right},
+      {}};
+  auto whole = [](double x) { return detail::with_thousands(x, 0); };
+  for (int t : months_shown(p.months)) {
+    const auto i = static_cast<std::size_t>(t - 1);
+    table.rows.push_back({
+        std::to_string(t),
+        detail::iso_date(detail::payment_date(cutoff, t, delay_days)),
+        whole(p.begin_balance[i]),
+        whole(p.sched_principal[i]),
+        whole(p.prepayment[i]),
+        whole(p.defaults[i]),
+        whole(p.loss[i]),
+        whole(p.recovery[i]),
+        whole(p.net_interest[i]),
+        whole(p.cash_flow[i]),
+        detail::fixed_or_dash(p.cpr[i], 3),
+        detail::fixed_or_dash(p.cdr[i], 3),
+        detail::fixed_or_dash(p.cum_loss_pct[i], 4),
+    });
+  }
+  return detail::render(table);
+}
+
+// ---- JSON ---------------------------------------------------------------------------------------
+
+Json assumptions_json(const Assumptions& a) {
+  return Json{
+      {"prepay", prepay_text(a.prepay)},
+      {"default", default_text(a.default_rate)},
+      {"severity", severity_text(a.severity)},
+      {"lag_months", a.lag_months},
+      {"advancing", std::string(to_string(a.advancing))},
+      {"delinquent_default", a.delinquent_default},
+  };
+}
+
+Json month_json(const PoolFlows& p, int t, Date cutoff, int delay_days) {
+  const auto i = static_cast<std::size_t>(t - 1);
+  using detail::number_or_null;
+  return Json{
+      {"month", t},
+      {"date", detail::iso_date(detail::payment_date(cutoff, t, delay_days))},
+      {"begin_balance", number_or_null(p.begin_balance[i])},
+      {"sched_principal", number_or_null(p.sched_principal[i])},
+      {"prepayment", number_or_null(p.prepayment[i])},
+      {"default", number_or_null(p.defaults[i])},
+      {"loss", number_or_null(p.loss[i])},
+      {"recovery", number_or_null(p.recovery[i])},
+      {"gross_interest", number_or_null(p.gross_interest[i])},
+      {"servicing", number_or_null(p.servicing[i])},
+      {"net_interest", number_or_null(p.net_interest[i])},
+      {"total_principal", number_or_null(p.total_principal[i])},
+      {"cash_flow", number_or_null(p.cash_flow[i])},
+      {"end_balance", number_or_null(p.end_balance[i])},
+      {"smm", number_or_null(p.smm[i])},
+      {"mdr", number_or_null(p.mdr[i])},
+      {"cpr", number_or_null(p.cpr[i])},
+      {"cdr", number_or_null(p.cdr[i])},
+      {"cum_loss_pct", number_or_null(p.cum_loss_pct[i])},
+  };
+}
+
+// ---- Loans CSV ----------------------------------------------------------------------------------
+
+void check_sizes(const LoanArrays& loans, const LoanFlows& f) {
+  const std::size_t n = loans.size();
+  for (const std::vector<double>* v :
+       {&f.sched_principal, &f.prepayment, &f.defaults, &f.loss, &f.recovery, &f.gross_interest,
+        &f.servicing, &f.net_interest, &f.advanced_interest, &f.cash_flow, &f.wal_years}) {
+    if (v->size() != n)
+      throw std::invalid_argument(fmt::format(
+          "loan flows: a column has {} loans, the tape {}: was loan_totals set?", v->size(), n));
+  }
+  if (f.last_month.size() != n || loans.loan_id.size() != n || loans.row.size() != n ||
+      loans.seller.size() != n)
+    throw std::invalid_argument("loan flows: columns of different lengths");
+}
+
+// Loans [first, last) appended to `out`, one line each.
+void put_loan_rows(Buffer& out, const LoanArrays& loans, const LoanFlows& f,
+                   const std::vector<std::string>& sellers, std::size_t first, std::size_t last) {
+  for (std::size_t i = first; i < last; ++i) {
+    put_csv_text(out, loans.loan_id[i]);
+    fmt::format_to(std::back_inserter(out), FMT_COMPILE(",{},"), loans.row[i]);
+    const std::size_t s = loans.seller[i];
+    if (s < sellers.size()) out.append(sellers[s]);
+    for (double x : {loans.current_balance[i], f.sched_principal[i], f.prepayment[i],
+                     f.defaults[i], f.loss[i], f.recovery[i], f.gross_interest[i],
+                     f.servicing[i], f.net_interest[i], f.advanced_interest[i], f.cash_flow[i]}) {
+      out.push_back(',');
+      put_money(out, x);
+    }
+    out.push_back(',');
+    put_fixed(out, f.wal_years[i], kWalDecimals);
+    fmt::format_to(std::back_inserter(out), FMT_COMPILE(",{}\n"), f.last_month[i]);
+  }
+}
+
+std::vector<std::string> csv_seller_names(const LoanArrays& loans) {
+  std::vector<std::string> names;
+  names.reserve(loans.seller_names.size());
+  for (const std::string& name : loans.seller_names) names.push_back(csv_text(name));
+  return names;
+}
+
+}  // namespace
+
+std::string cashflow_csv(const PoolFlows& p, Date cutoff, int delay_days) {
+  check_sizes(p);
+  Buffer out;
+  out.append(kCashflowCsvHeader);
+  out.push_back('\n');
+  for (int t = 1; t <= p.months; ++t) {
+    const auto i = static_cast<std::size_t>(t - 1);
+    fmt::format_to(std::back_inserter(out), "{},{}", t,
+                   detail::iso_date(detail::payment_date(cutoff, t, delay_days)));
+    for (double x : {p.begin_balance[i], p.sched_principal[i], p.prepayment[i], p.defaults[i],
+                     p.loss[i], p.recovery[i], p.gross_interest[i], p.servicing[i],
+                     p.net_interest[i], p.total_principal[i], p.cash_flow[i], p.end_balance[i]}) {
+      out.push_back(',');
+      put_money(out, x);
+    }
+    for (double x : {p.smm[i], p.mdr[i]}) {
+      out.push_back(',');
+      put_fixed(out, x, kMonthlyDecimals);
+    }
+    for (double x : {p.cpr[i], p.cdr[i], p.cum_loss_pct[i]}) {
+      out.push_back(',');
+      put_fixed(out, x, kPercentDecimals);
+    }
+    out.push_back('\n');
+  }
+  return fmt::to_string(out);
+}
+
+std::string loan_flows_csv(const LoanArrays& loans, const LoanFlows& flows) {
+  check_sizes(loans, flows);
+  Buffer out;
+  out.append(kLoanFlowsCsvHeader);
+  out.push_back('\n');
+  put_loan_rows(out, loans, flows, csv_seller_names(loans), 0, loans.size());
+  return fmt::to_string(out);
+}
+
+void write_loan_flows_csv(std::ostream& stream, const LoanArrays& loans, const LoanFlows& flows) {
+  check_sizes(loans, flows);
+  const std::vector<std::string> sellers = csv_seller_names(loans);
+  Buffer out;
+  out.append(kLoanFlowsCsvHeader);
+  out.push_back('\n');
+  constexpr std::size_t kRowsPerPiece = 4096;
+  for (std::size_t first = 0; first < loans.size(); first += kRowsPerPiece) {
+    put_loan_rows(out, loans, flows, sellers, first, std::min(first + kRowsPerPiece, loans.size()));
+    if (out.size() >= kStreamChunkBytes) {
+      stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+      out.clear();
+      if (!stream) return;  // the caller sees the stream's state
+    }
+  }
+  stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+}
+
+std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
+                          const PoolFlows& pool, int delay_days) {
+  const Date cutoff = cutoff_of(tape);
+  check_sizes(pool);
+  std::string out = fmt::format("poolbid cashflows: {}\ncut-off date: {}\n\nassumptions\n",
+                                detail::display_text(tape.file, 200), detail::iso_date(cutoff));
+  out += assumptions_text(assumptions, cutoff, delay_days);
+  out += "\npool\n";
+  out += summary_text(tape, pool, assumptions, cutoff, delay_days);
+
+  out += '\n';
+  if (pool.months <= 0) {
+    out += "No cash flows: no loan was projected.\n";
+  } else {
+    out += fmt::format(
+        "by month, in dollars: months 1-12, then every 12th month{}; `--csv FILE` writes all "
+        "{}\n",
+        pool.months > 12 && pool.months % 12 != 0 ? " and the last" : "",
+        detail::count_of(static_cast<std::size_t>(pool.months), "month", "months"));
+    out += months_text(pool, cutoff, delay_days);
+  }
+
+  out += '\n';
+  if (tape.rows_rejected == 0) {
+    out += fmt::format("rejected rows: none; all {} read are projected.\n",
+                       detail::count_of(tape.rows_read, "row", "rows"));
+  } else {
+    out += fmt::format("rejected rows: {}:\n", rejects_heading(tape));
+    out += rejects_table(tape);
+  }
+  if (tape.rows_with_warnings > 0)
+    out += fmt::format("{} with warnings {} projected as read; `poolbid check` lists the "
+                       "warnings.\n",
+                       detail::count_of(tape.rows_with_warnings, "accepted row", "accepted rows"),
+                       tape.rows_with_warnings == 1 ? "is" : "are");
+  out += fmt::format("\n{}\n", caution_text());
+  return out;
+}
+
+std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
+                          const PoolFlows& pool, int delay_days) {
+  const Date cutoff = cutoff_of(tape);
+  check_sizes(pool);
+  const PoolTotals t = totals(pool);
+  using detail::number_or_null;
+  Json summary = {
+      {"rows_read", tape.rows_read},
+      {"rows_accepted", tape.rows_accepted()},
+      {"rows_rejected", tape.rows_rejected},
+      {"upb_rejected", number_or_null(tape.upb_rejected)},
+      {"loans", tape.rows_accepted()},
+      {"cutoff_balance", number_or_null(pool.cutoff_balance)},
+      {"months", std::max(pool.months, 0)},
+      {"last_payment_date",
+       pool.months > 0 ? Json(detail::iso_date(detail::payment_date(cutoff, pool.months,
+                                                                    delay_days)))
+                       : Json(nullptr)},
+      {"sched_principal", number_or_null(t.sched_principal)},
+      {"prepayment", number_or_null(t.prepayment)},
+      {"default", number_or_null(t.defaults)},
+      {"loss", number_or_null(t.loss)},
+      {"recovery", number_or_null(t.recovery)},
+      {"gross_interest", number_or_null(t.gross_interest)},
+      {"servicing", number_or_null(t.servicing)},
+      {"net_interest", number_or_null(t.net_interest)},
+      {"advanced_interest", number_or_null(t.advanced_interest)},
+      {"total_principal", number_or_null(t.total_principal)},
+      {"cash_flow", number_or_null(t.cash_flow)},
+      {"cum_loss_pct", number_or_null(t.cum_loss_pct)},
+  };
+  Json months = Json::array();
+  for (int m = 1; m <= pool.months; ++m) months.push_back(month_json(pool, m, cutoff, delay_days));
+  Json rejected = Json::array();
+  for (const RowProblem& p : tape.problems) {
+    if (!p.reject) continue;
+    rejected.push_back(Json{
+        {"row", p.row},
+        {"loan_id", p.loan_id},
+        {"field", p.field ? Json(std::string(field_name(*p.field))) : Json(nullptr)},
+        {"column", p.column},
+        {"value", p.value},
+        {"reason", p.reason},
+    });
+  }
+  Json document = {
+      {"file", tape.file},
+      {"cutoff_date", detail::iso_date(cutoff)},
+      {"payment_delay_days", delay_days},
+      {"assumptions", assumptions_json(assumptions)},
+      {"summary", std::move(summary)},
+      {"months", std::move(months)},
+      {"rejected", std::move(rejected)},
+      {"caution", std::string(caution_text())},
+  };
+  return detail::dump_json(document);
+}
+
+std::string rejected_rows_text(const TapeRead& tape) {
+  if (tape.rows_rejected == 0) return "";
+  return fmt::format("poolbid: {}; each rejecting problem:\n{}", rejects_heading(tape),
+                     rejects_table(tape));
+}
+
+}  // namespace poolbid
