@@ -119,112 +119,113 @@ void apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSl
   }
 }
 
-// The loop. Template flags: which curves read the loan's age (a per-loan table lookup) rather than
-// the projection month (one value for the block), and whether per-loan totals are kept.
+// One month of the loop for one block. Template flags: which curves need a per-loan table lookup
+// by loan age (rather than one value for the whole block this month), and whether per-loan totals
+// are kept.
 template <bool kPrepayByAge, bool kDefaultByAge, bool kSeverityByAge, bool kTotals>
-void run_block(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, ChunkSums& sums) {
+void step_month(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
   const double* const smm_table = in.smm.by_month.data();
   const double* const mdr_table = in.mdr.by_month.data();
   const double* const severity_table = in.severity.by_month.data();
   const int smm_hold = in.smm.hold, mdr_hold = in.mdr.hold, severity_hold = in.severity.hold;
-  const double* const discount = in.discount.data();
-  const double* const advance_discount = in.advance_discount.data();
   const int lag = in.lag;
   const double lag_months = lag;
   // Months of interest advanced per defaulted dollar: the lag when advancing, else none.
   const double advance_months = in.advancing ? lag_months : 0.0;
   const std::size_t n = b.count;
+  const double month = t;
+  const double first_month = t == 1 ? 1.0 : 0.0;
+  // One value for the block: the projection month's, or (loan-age clock, every loan past the
+  // curve's last changing month) the held value.
+  auto block_value = [t](const MonthlyTable& table) {
+    return table.by_month[table.clock == CurveClock::loan_age ? table.hold
+                                                              : std::min(t, table.hold)];
+  };
+  const double smm_now = block_value(in.smm);
+  const double mdr_now = block_value(in.mdr);
+  const double severity_now = block_value(in.severity);
+  const double df_paid = kTotals ? in.discount[t] : 0.0;
+  const double df_liquidated = kTotals ? in.discount[t + lag] : 0.0;
+  const double df_advanced = kTotals && in.advancing ? in.advance_discount[t] : 0.0;
 
-  for (int t = 1; t <= b.months; ++t) {
-    if (!slots.empty()) apply_coupon_changes(in, b, slots, t);
-    const double month = t;
-    const double first_month = t == 1 ? 1.0 : 0.0;
-    const double smm_now = smm_table[std::min(t, smm_hold)];
-    const double mdr_now = mdr_table[std::min(t, mdr_hold)];
-    const double severity_now = severity_table[std::min(t, severity_hold)];
-    const double df_paid = kTotals ? discount[t] : 0.0;
-    const double df_liquidated = kTotals ? discount[t + lag] : 0.0;
-    const double df_advanced = kTotals && in.advancing ? advance_discount[t] : 0.0;
-
-    double s_begin = 0, s_defaults = 0, s_sched = 0, s_prepay = 0, s_gross = 0, s_servicing = 0,
-           s_net = 0, s_end = 0, s_recovery = 0, s_advance = 0;
+  double s_begin = 0, s_defaults = 0, s_sched = 0, s_prepay = 0, s_gross = 0, s_servicing = 0,
+         s_net = 0, s_end = 0, s_recovery = 0, s_advance = 0;
 #pragma omp simd reduction(+ : s_begin, s_defaults, s_sched, s_prepay, s_gross, s_servicing, \
-                               s_net, s_end, s_recovery, s_advance)
-    for (std::size_t i = 0; i < n; ++i) {
-      double smm = smm_now, mdr = mdr_now, severity = severity_now;
-      if constexpr (kPrepayByAge) smm = smm_table[lesser(b.age[i] + t, smm_hold)];
-      if constexpr (kDefaultByAge) mdr = mdr_table[lesser(b.age[i] + t, mdr_hold)];
-      if constexpr (kSeverityByAge)
-        severity = severity_table[lesser(b.age[i] + t, severity_hold)];
-      mdr = greater(mdr, b.delinquent[i] * first_month);
+                             s_net, s_end, s_recovery, s_advance)
+  for (std::size_t i = 0; i < n; ++i) {
+    double smm = smm_now, mdr = mdr_now, severity = severity_now;
+    if constexpr (kPrepayByAge) smm = smm_table[lesser(b.age[i] + t, smm_hold)];
+    if constexpr (kDefaultByAge) mdr = mdr_table[lesser(b.age[i] + t, mdr_hold)];
+    if constexpr (kSeverityByAge)
+      severity = severity_table[lesser(b.age[i] + t, severity_hold)];
+    mdr = greater(mdr, b.delinquent[i] * first_month);
 
-      // 1. Defaults off the beginning balance.
-      const double begin = b.balance[i];
-      const double defaulted = begin * mdr;
-      const double performing = begin - defaulted;
-      // 2-4. Interest on the performing balance; the level payment scales with it.
-      const bool interest_only = month <= b.io_end[i];
-      const bool final_month = month == b.last[i];
-      const double gross = performing * b.rate[i];
-      const double servicing = performing * b.fee[i];
-      const double net = performing * b.net[i];
-      const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
-      const double sched = final_month ? performing : payment - gross;
-      // 5. Prepayment on what is left after scheduled principal.
-      const double prepay = final_month ? 0.0 : smm * (performing - sched);
-      const double end = performing - sched - prepay;
-      b.balance[i] = end;
-      b.payment[i] = final_month      ? 0.0
-                     : interest_only ? end * b.io_factor[i]
-                                     : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
-      // 6-7. The defaulted balance is liquidated `lag` months on; advances come out of recovery.
-      const double advance = defaulted * b.net[i];
-      const double kept = greater(0.0, 1.0 - severity - b.net[i] * advance_months);
-      const double recovery = defaulted * kept;
+    // 1. Defaults off the beginning balance.
+    const double begin = b.balance[i];
+    const double defaulted = begin * mdr;
+    const double performing = begin - defaulted;
+    // 2-4. Interest on the performing balance; the level payment scales with it.
+    const bool interest_only = month <= b.io_end[i];
+    const bool final_month = month == b.last[i];
+    const double gross = performing * b.rate[i];
+    const double servicing = performing * b.fee[i];
+    const double net = performing * b.net[i];
+    const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
+    const double sched = final_month ? performing : payment - gross;
+    // 5. Prepayment on what is left after scheduled principal.
+    const double prepay = final_month ? 0.0 : smm * (performing - sched);
+    const double end = performing - sched - prepay;
+    b.balance[i] = end;
+    b.payment[i] = final_month      ? 0.0
+                   : interest_only ? end * b.io_factor[i]
+                                   : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
+    // 6-7. The defaulted balance is liquidated `lag` months on; advances come out of recovery.
+    const double advance = defaulted * b.net[i];
+    const double kept = greater(0.0, 1.0 - severity - b.net[i] * advance_months);
+    const double recovery = defaulted * kept;
 
-      s_begin += begin;
-      s_defaults += defaulted;
-      s_sched += sched;
-      s_prepay += prepay;
-      s_gross += gross;
-      s_servicing += servicing;
-      s_net += net;
-      s_end += end;
-      s_recovery += recovery;
-      s_advance += advance;
+    s_begin += begin;
+    s_defaults += defaulted;
+    s_sched += sched;
+    s_prepay += prepay;
+    s_gross += gross;
+    s_servicing += servicing;
+    s_net += net;
+    s_end += end;
+    s_recovery += recovery;
+    s_advance += advance;
 
-      if constexpr (kTotals) {
-        const double advanced = advance * advance_months;
-        b.sched[i] += sched;
-        b.prepaid[i] += prepay;
-        b.defaulted[i] += defaulted;
-        b.recovered[i] += recovery;
-        b.gross[i] += gross;
-        b.serviced[i] += servicing;
-        b.netpaid[i] += net;
-        b.advanced[i] += advanced;
-        b.timed_principal[i] += month * (sched + prepay) + (month + lag_months) * recovery;
-        b.present_value[i] += (net + sched + prepay) * df_paid + recovery * df_liquidated +
-                              advance * df_advanced;
-        // Cash arrives this month, through the advances (months t .. t+lag-1) and at the sale.
-        const double paid = greater(b.last_cash[i], net + sched + prepay > 0.0 ? month : 0.0);
-        const double advanced_to = advanced > 0.0 ? month + advance_months - 1.0 : 0.0;
-        b.last_cash[i] =
-            greater(greater(paid, advanced_to), recovery > 0.0 ? month + lag_months : 0.0);
-      }
+    if constexpr (kTotals) {
+      const double advanced = advance * advance_months;
+      b.sched[i] += sched;
+      b.prepaid[i] += prepay;
+      b.defaulted[i] += defaulted;
+      b.recovered[i] += recovery;
+      b.gross[i] += gross;
+      b.serviced[i] += servicing;
+      b.netpaid[i] += net;
+      b.advanced[i] += advanced;
+      b.timed_principal[i] += month * (sched + prepay) + (month + lag_months) * recovery;
+      b.present_value[i] += (net + sched + prepay) * df_paid + recovery * df_liquidated +
+                            advance * df_advanced;
+      // Cash arrives this month, through the advances (months t .. t+lag-1) and at the sale.
+      const double paid = greater(b.last_cash[i], net + sched + prepay > 0.0 ? month : 0.0);
+      const double advanced_to = advanced > 0.0 ? month + advance_months - 1.0 : 0.0;
+      b.last_cash[i] =
+          greater(greater(paid, advanced_to), recovery > 0.0 ? month + lag_months : 0.0);
     }
-    auto& s = sums.by_month;
-    s[kBegin][t] += s_begin;
-    s[kDefaults][t] += s_defaults;
-    s[kSched][t] += s_sched;
-    s[kPrepay][t] += s_prepay;
-    s[kGross][t] += s_gross;
-    s[kServicing][t] += s_servicing;
-    s[kNet][t] += s_net;
-    s[kEnd][t] += s_end;
-    s[kRecoveryByDefaultMonth][t] += s_recovery;
-    s[kAdvanceByDefaultMonth][t] += s_advance;
   }
+  auto& s = sums.by_month;
+  s[kBegin][t] += s_begin;
+  s[kDefaults][t] += s_defaults;
+  s[kSched][t] += s_sched;
+  s[kPrepay][t] += s_prepay;
+  s[kGross][t] += s_gross;
+  s[kServicing][t] += s_servicing;
+  s[kNet][t] += s_net;
+  s[kEnd][t] += s_end;
+  s[kRecoveryByDefaultMonth][t] += s_recovery;
+  s[kAdvanceByDefaultMonth][t] += s_advance;
 }
 
 void store_totals(const Block& b, const EngineInputs& in, LoanFlows& out) {
@@ -249,20 +250,30 @@ void store_totals(const Block& b, const EngineInputs& in, LoanFlows& out) {
   (void)in;
 }
 
-using BlockLoop = void (*)(const EngineInputs&, Block&, std::vector<CouponSlot>&, ChunkSums&);
+using MonthStep = void (*)(const EngineInputs&, Block&, int, ChunkSums&);
 
+// The month steps for each mix of per-loan lookups: index 4 = prepay, 2 = default, 1 = severity.
 template <bool kTotals>
-BlockLoop pick_loop(bool prepay_by_age, bool default_by_age, bool severity_by_age) {
-  const int key = (prepay_by_age ? 4 : 0) + (default_by_age ? 2 : 0) + (severity_by_age ? 1 : 0);
-  switch (key) {
-    case 0: return run_block<false, false, false, kTotals>;
-    case 1: return run_block<false, false, true, kTotals>;
-    case 2: return run_block<false, true, false, kTotals>;
-    case 3: return run_block<false, true, true, kTotals>;
-    case 4: return run_block<true, false, false, kTotals>;
-    case 5: return run_block<true, false, true, kTotals>;
-    case 6: return run_block<true, true, false, kTotals>;
-    default: return run_block<true, true, true, kTotals>;
+constexpr MonthStep kMonthSteps[8] = {
+    step_month<false, false, false, kTotals>, step_month<false, false, true, kTotals>,
+    step_month<false, true, false, kTotals>,  step_month<false, true, true, kTotals>,
+    step_month<true, false, false, kTotals>,  step_month<true, false, true, kTotals>,
+    step_month<true, true, false, kTotals>,   step_month<true, true, true, kTotals>,
+};
+
+// The block's months. A loan-age curve needs a lookup per loan only while some loan in the block
+// is younger than the curve's last changing month; after that every loan reads the held value.
+template <bool kTotals>
+void run_block(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, ChunkSums& sums) {
+  const int youngest = b.count ? *std::min_element(b.age, b.age + b.count) : 0;
+  auto per_loan = [youngest](const MonthlyTable& table, int t) {
+    return table.clock == CurveClock::loan_age && youngest + t < table.hold;
+  };
+  for (int t = 1; t <= b.months; ++t) {
+    if (!slots.empty()) apply_coupon_changes(in, b, slots, t);
+    const int key = (per_loan(in.smm, t) ? 4 : 0) + (per_loan(in.mdr, t) ? 2 : 0) +
+                    (per_loan(in.severity, t) ? 1 : 0);
+    kMonthSteps<kTotals>[key](in, b, t, sums);
   }
 }
 
@@ -282,11 +293,7 @@ int final_month(const LoanArrays& loans, std::size_t i) {
 }
 
 void project_chunk(const EngineInputs& in, std::size_t first, std::size_t last, ChunkSums& sums) {
-  const bool by_age[3] = {in.smm.clock == CurveClock::loan_age,
-                          in.mdr.clock == CurveClock::loan_age,
-                          in.severity.clock == CurveClock::loan_age};
-  const BlockLoop loop = in.loan_totals ? pick_loop<true>(by_age[0], by_age[1], by_age[2])
-                                        : pick_loop<false>(by_age[0], by_age[1], by_age[2]);
+  const auto loop = in.loan_totals ? run_block<true> : run_block<false>;
   auto block = std::make_unique<Block>();
   for (std::size_t start = first; start < last; start += kBlockLoans) {
     load_block(in, start, std::min(kBlockLoans, last - start), *block);
