@@ -1,5 +1,5 @@
-// Cash-flow projection: every loan's monthly flows under the assumption curves (DESIGN.md section 4),
-// summed to a pool table in a fixed order, so results are bit-identical for any thread count.
+// Cash-flow projection: every loan's monthly flows under the assumption curves (DESIGN.md
+// section 4), summed to a pool table in a fixed order, so results are bit-identical for any thread count.
 // Loans are read as structure-of-arrays and projected in blocks: months outer, loans inner.
 // project_pool is safe to call from several threads at once; it starts its own worker threads.
 #pragma once

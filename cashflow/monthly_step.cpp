@@ -1,4 +1,4 @@
-// The monthly step of DESIGN.md section 4 over one chunk of loans, a block of kBlockLoans at a time:
+// The monthly step of DESIGN.md section 4 over one chunk of loans, kBlockLoans at a time:
 // months outer, loans inner, the block's state in arrays that stay in L1. No allocation, no pow and
 // no division per loan-month: the level payment is carried forward and scaled by what survives.
 #include <algorithm>
@@ -15,7 +15,9 @@ namespace {
 inline int lesser(int a, int b) { return a < b ? a : b; }
 inline double greater(double a, double b) { return a > b ? a : b; }
 
-// One block's state, one slot per loan; `count` slots in use.
+// One block's state, one slot per loan; `count` slots in use. Month counts the loop compares with
+// (io_end, last) and flags (delinquent) are doubles so that the loop runs on one vector width.
+// About 19 KiB, 41 KiB with the lifetime totals: within a 48 KiB L1 data cache.
 struct Block {
   std::size_t first = 0;  // index of slot 0 in LoanArrays
   std::size_t count = 0;
@@ -92,7 +94,8 @@ std::vector<CouponSlot> coupon_slots(const EngineInputs& in, const Block& b) {
   auto it = std::lower_bound(listed.begin(), listed.end(), b.first);
   for (; it != listed.end() && *it < b.first + b.count; ++it) {
     const std::size_t slot = *it - b.first;
-    slots.push_back({slot, static_cast<std::size_t>(it - listed.begin()), b.rate[slot] * 12.0});
+    const auto path_row = static_cast<std::size_t>(it - listed.begin());
+    slots.push_back({slot, path_row, in.loans->note_rate[*it]});
   }
   return slots;
 }
@@ -228,7 +231,7 @@ void step_month(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
   s[kAdvanceByDefaultMonth][t] += s_advance;
 }
 
-void store_totals(const Block& b, const EngineInputs& in, LoanFlows& out) {
+void store_totals(const Block& b, LoanFlows& out) {
   const bool discounted = !out.present_value.empty();
   for (std::size_t i = 0; i < b.count; ++i) {
     const std::size_t g = b.first + i;
@@ -247,7 +250,6 @@ void store_totals(const Block& b, const EngineInputs& in, LoanFlows& out) {
     if (discounted) out.present_value[g] = b.present_value[i];
     out.last_month[g] = static_cast<std::int32_t>(b.last_cash[i]);
   }
-  (void)in;
 }
 
 using MonthStep = void (*)(const EngineInputs&, Block&, int, ChunkSums&);
@@ -288,7 +290,8 @@ double annuity_factor(double r, int months) {
 int final_month(const LoanArrays& loans, std::size_t i) {
   const int remaining = loans.remaining_term[i];
   const int balloon = loans.balloon_month[i];
-  if (balloon > 0 && balloon - loans.age[i] >= 1) return std::min(remaining, balloon - loans.age[i]);
+  const int balloon_due = balloon - loans.age[i];  // projection month of the balloon
+  if (balloon > 0 && balloon_due >= 1) return std::min(remaining, balloon_due);
   return remaining;
 }
 
@@ -299,7 +302,7 @@ void project_chunk(const EngineInputs& in, std::size_t first, std::size_t last, 
     load_block(in, start, std::min(kBlockLoans, last - start), *block);
     std::vector<CouponSlot> slots = coupon_slots(in, *block);
     loop(in, *block, slots, sums);
-    if (in.loan_totals) store_totals(*block, in, *in.loan_totals);
+    if (in.loan_totals) store_totals(*block, *in.loan_totals);
   }
 }
 

@@ -32,25 +32,44 @@ void check_loans(const LoanArrays& l) {
     const bool usable = std::isfinite(l.current_balance[i]) && l.current_balance[i] >= 0 &&
                         std::isfinite(l.note_rate[i]) && l.note_rate[i] >= 0 &&
                         std::isfinite(l.servicing_fee[i]) && l.servicing_fee[i] >= 0 &&
+                        l.servicing_fee[i] <= l.note_rate[i] &&
                         l.remaining_term[i] >= 1 && l.age[i] >= 0;
     if (!usable)
       throw std::invalid_argument(fmt::format(
-          "project_pool: loan '{}' (row {}) has no usable balance, rate, fee, term or age",
+          "project_pool: loan '{}' (row {}) has no usable balance, rate, fee (at most the "
+          "rate), term or age",
           l.loan_id[i], i < l.row.size() ? l.row[i] : 0));
   }
 }
 
-void check_coupons(const CouponPaths& c, std::size_t loans) {
-  const bool ok = c.months >= 1 && c.rates.size() == c.loans.size() * std::size_t(c.months) &&
-                  std::is_sorted(c.loans.begin(), c.loans.end()) &&
-                  std::adjacent_find(c.loans.begin(), c.loans.end()) == c.loans.end() &&
-                  (c.loans.empty() || c.loans.back() < loans) &&
-                  std::all_of(c.rates.begin(), c.rates.end(),
-                              [](double r) { return std::isfinite(r) && r >= 0; });
+// Coupon paths list loans once, ascending, with a finite rate for every month that is at least
+// the loan's servicing fee (as its note rate must be).
+void check_coupons(const CouponPaths& c, const LoanArrays& l) {
+  bool ok = c.months >= 1 && c.rates.size() == c.loans.size() * std::size_t(c.months) &&
+            std::is_sorted(c.loans.begin(), c.loans.end()) &&
+            std::adjacent_find(c.loans.begin(), c.loans.end()) == c.loans.end() &&
+            (c.loans.empty() || c.loans.back() < l.size());
+  for (std::size_t k = 0; ok && k < c.loans.size(); ++k) {
+    const double fee = l.servicing_fee[c.loans[k]];
+    const auto first = c.rates.begin() + std::ptrdiff_t(k * c.months);
+    ok = std::all_of(first, first + c.months,
+                     [fee](double r) { return std::isfinite(r) && r >= fee; });
+  }
   if (!ok)
     throw std::invalid_argument(
-        "project_pool: coupon paths must list loans once, ascending, with months x loans "
-        "finite rates");
+        "project_pool: coupon paths must list loans once, ascending, with a finite rate for "
+        "every month, none below the loan's servicing fee");
+}
+
+// Monthly rates and severities must be shares: finite, 0 to 1. (curves/ refuses anything else from
+// text or a file; a hand-built SpeedCurve could still carry one.)
+void check_table(const MonthlyTable& table, const char* what) {
+  const bool ok = table.hold >= 1 && table.by_month.size() == std::size_t(table.hold) + 1 &&
+                  std::all_of(table.by_month.begin(), table.by_month.end(),
+                              [](double v) { return std::isfinite(v) && v >= 0 && v <= 1; });
+  if (!ok)
+    throw std::invalid_argument(
+        fmt::format("project_pool: the {} curve gives a monthly value outside 0-100%", what));
 }
 
 // Runs project_chunk over every chunk on `threads` workers; each chunk writes only its own sums.
@@ -158,7 +177,7 @@ Projection project_pool(const LoanArrays& loans, const Assumptions& assumptions,
   check_loans(loans);
   if (assumptions.lag_months < 0)
     throw std::invalid_argument("project_pool: the severity lag cannot be negative");
-  if (options.coupons) check_coupons(*options.coupons, loans.size());
+  if (options.coupons) check_coupons(*options.coupons, loans);
   const std::size_t n = loans.size();
 
   detail::EngineInputs in;
@@ -166,6 +185,9 @@ Projection project_pool(const LoanArrays& loans, const Assumptions& assumptions,
   in.smm = monthly_rate_table(assumptions.prepay);
   in.mdr = monthly_rate_table(assumptions.default_rate);
   in.severity = monthly_share_table(assumptions.severity);
+  check_table(in.smm, "prepayment");
+  check_table(in.mdr, "default");
+  check_table(in.severity, "severity");
   in.lag = assumptions.lag_months;
   in.advancing = assumptions.advancing == Advancing::interest;
   in.delinquent_default = assumptions.delinquent_default;

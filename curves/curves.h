@@ -8,13 +8,14 @@
 #include <stdexcept>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 namespace poolbid {
 
 using Rate = double;  // decimal per year: 0.065
 
-// ---- Standard curves and rate conversions (DESIGN.md sections 2 and 3) ---------------------------
+// ---- Standard curves and rate conversions (DESIGN.md sections 2 and 3) --------------------------
 // PSA 100%: CPR = 6% x min(1, age / 30); `multiple` 1.5 = 150 PSA.
 Rate psa_cpr(double multiple, int age_months);
 // SDA 100%: CDR 0.02% x age to 30, 0.60% to 60, down 0.0095% a month to 120, then 0.03%.
@@ -25,7 +26,7 @@ Rate cpr_from_smm(double smm);
 double mdr_from_cdr(Rate cdr);
 Rate cdr_from_mdr(double mdr);
 
-// ---- Assumption curves ----------------------------------------------------------------------------
+// ---- Assumption curves --------------------------------------------------------------------------
 // Which month a curve reads: the loan's age (age at cut-off + projection month, so a loan 3 months
 // old at cut-off reads month 4 in projection month 1) or the projection month (1 = the first month
 // after cut-off, the same for every loan).
@@ -53,10 +54,39 @@ struct SpeedCurve {
   bool operator==(const SpeedCurve&) const = default;
 };
 
-// A constant curve read by projection month.
-inline SpeedCurve constant_curve(double value) {
+// Curve builders: one line per assumption in code and tests.
+inline SpeedCurve constant_curve(double value,
+                                 CurveClock clock = CurveClock::projection_month) {
   SpeedCurve curve;
+  curve.clock = clock;
   curve.value = value;
+  return curve;
+}
+inline SpeedCurve vector_curve(std::vector<double> values,
+                               CurveClock clock = CurveClock::projection_month) {
+  SpeedCurve curve;
+  curve.shape = CurveShape::vector;
+  curve.clock = clock;
+  curve.values = std::move(values);
+  return curve;
+}
+inline SpeedCurve ramp_curve(double from, double to, int months,
+                             CurveClock clock = CurveClock::projection_month) {
+  SpeedCurve curve;
+  curve.shape = CurveShape::ramp;
+  curve.clock = clock;
+  curve.ramp_from = from;
+  curve.ramp_to = to;
+  curve.ramp_months = months;
+  return curve;
+}
+// PSA or SDA at `multiple` (1.5 = 150%), read by loan age unless told otherwise.
+inline SpeedCurve standard_curve(CurveShape psa_or_sda, double multiple,
+                                 CurveClock clock = CurveClock::loan_age) {
+  SpeedCurve curve;
+  curve.shape = psa_or_sda;
+  curve.clock = clock;
+  curve.value = multiple;
   return curve;
 }
 
@@ -74,7 +104,7 @@ struct MonthlyTable {
 MonthlyTable monthly_rate_table(const SpeedCurve& annual_rate);  // SMM or MDR by month
 MonthlyTable monthly_share_table(const SpeedCurve& share);       // severity by month
 
-// ---- Assumptions for one projection ---------------------------------------------------------------
+// ---- Assumptions for one projection -------------------------------------------------------------
 // What the servicer advances on loans that have defaulted but are not yet liquidated.
 enum class Advancing : std::uint8_t {
   none,      // nothing: the investor gets no interest on defaulted balance
@@ -96,7 +126,7 @@ struct Assumptions {
   bool delinquent_default = false;
 };
 
-// ---- Text forms (command line) --------------------------------------------------------------------
+// ---- Text forms (command line) ------------------------------------------------------------------
 // Speeds are annual percent, as the trade quotes them:
 //   prepay:   cpr:8   psa:150   cpr:6,7,8,9 (vector)   cpr:2..8/24 (ramp 2% -> 8% over 24 months)
 //   default:  cdr:1.5 sda:200   cdr:0.5,1,1.5           cdr:0..3/36
@@ -116,7 +146,7 @@ std::string default_text(const SpeedCurve& curve);
 std::string severity_text(const SpeedCurve& curve);
 std::string_view to_string(Advancing advancing);  // "none", "interest"
 
-// ---- JSON assumptions file --------------------------------------------------------------------------
+// ---- JSON assumptions file ----------------------------------------------------------------------
 // {"prepay": "psa:150", "default": "sda:200", "severity": 45, "lag_months": 12,
 //  "advancing": "interest", "delinquent_default": true}
 // Each curve may also be an object with explicit monthly values in percent:
@@ -127,7 +157,8 @@ Assumptions parse_assumptions(std::string_view json_text, std::string_view sourc
                               const Assumptions& base = {});
 
 // A bad assumption: `source` is the option ("--prepay") or file, `key` the JSON key ("" for an
-// option), `value` the text at fault. what(): "--prepay 'psb:150': unknown form; use cpr:.. or psa:.."
+// option), `value` the text at fault.
+// what(): "--prepay 'psb:150': unknown form; use cpr:RATE, psa:MULTIPLE, ..."
 struct AssumptionError : std::runtime_error {
   AssumptionError(std::string source, std::string key, std::string value,
                   const std::string& message);

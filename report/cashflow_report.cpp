@@ -203,7 +203,7 @@ std::string summary_text(const TapeRead& tape, const PoolFlows& pool, const Assu
   table.rows.push_back(
       {"months", count_text(static_cast<std::size_t>(std::max(pool.months, 0))),
        pool.months > 0
-           ? fmt::format("(last payment {})",
+           ? fmt::format("(last month paid {})",
                          detail::iso_date(detail::payment_date(cutoff, pool.months, delay_days)))
            : std::string()});
   money("scheduled principal", t.sched_principal);
@@ -297,6 +297,7 @@ Json month_json(const PoolFlows& p, int t, Date cutoff, int delay_days) {
       {"cpr", number_or_null(p.cpr[i])},
       {"cdr", number_or_null(p.cdr[i])},
       {"cum_loss_pct", number_or_null(p.cum_loss_pct[i])},
+      {"advanced_interest", number_or_null(p.advanced_interest[i])},
   };
 }
 

@@ -248,31 +248,45 @@ void check_arm(RowCheck& c) {
              fmt::format("ARM reset period {} months above 120", period));
 }
 
-// Terms that an ARM, interest-only or balloon loan cannot do without.
+// A balloon month, on whatever type of loan carries one, must fall after the loan age and within
+// the original term: the projection pays the balance off in that month.
+void check_balloon_month(RowCheck& c) {
+  const LoanArrays& l = c.loans();
+  const std::size_t i = c.i;
+  const bool known = c.has(Field::loan_age) && c.has(Field::original_term);
+  const int month = l.balloon_month[i];
+  const bool ok = c.has(Field::balloon_month) &&
+                  (known ? month > l.age[i] && month <= l.original_term[i] : month > 0);
+  if (!ok)
+    c.reject(Field::balloon_month,
+             known ? fmt::format("balloon loan without a balloon month after the loan age "
+                                 "({}) and within the original term ({})",
+                                 l.age[i], l.original_term[i])
+                   : std::string("balloon loan without a balloon month"));
+}
+
+// Terms that an ARM, interest-only or balloon loan cannot do without. Interest-only months and a
+// balloon month are projected on any loan that has them (interest-only ARMs are common); on a loan
+// whose type does not say so, a warning says how it will be projected.
 void check_amortization(RowCheck& c) {
   const LoanArrays& l = c.loans();
   const std::size_t i = c.i;
-  switch (l.amortization[i]) {
-    case Amortization::fixed: return;
-    case Amortization::arm: return check_arm(c);
-    case Amortization::interest_only:
-      if (!(c.has(Field::io_months) && l.io_months[i] > 0))
-        c.reject(Field::io_months, "interest-only loan without io_months above 0");
-      return;
-    case Amortization::balloon: {
-      const bool known = c.has(Field::loan_age) && c.has(Field::original_term);
-      const int month = l.balloon_month[i];
-      const bool ok = c.has(Field::balloon_month) &&
-                      (known ? month > l.age[i] && month <= l.original_term[i] : month > 0);
-      if (!ok)
-        c.reject(Field::balloon_month,
-                 known ? fmt::format("balloon loan without a balloon month after the loan age "
-                                     "({}) and within the original term ({})",
-                                     l.age[i], l.original_term[i])
-                       : std::string("balloon loan without a balloon month"));
-      return;
-    }
-  }
+  const Amortization type = l.amortization[i];
+  if (type == Amortization::arm) check_arm(c);
+  if (type == Amortization::interest_only && !(c.has(Field::io_months) && l.io_months[i] > 0))
+    c.reject(Field::io_months, "interest-only loan without io_months above 0");
+  const bool has_balloon = c.has(Field::balloon_month) && l.balloon_month[i] > 0;
+  if (type == Amortization::balloon || has_balloon) check_balloon_month(c);
+  if (c.rejected()) return;
+  if (type != Amortization::balloon && has_balloon)
+    c.warn(Field::balloon_month,
+           fmt::format("balloon month {} on a loan typed {}: projected as a balloon",
+                       l.balloon_month[i], to_string(type)));
+  if (type == Amortization::fixed && c.has(Field::io_months) && l.io_months[i] > 0)
+    c.warn(Field::io_months,
+           fmt::format("{} interest-only months on a loan typed fixed: projected as "
+                       "interest-only for them",
+                       l.io_months[i]));
 }
 
 // Cells (`bits`, one per Field) that disagree with their column's unit and have no problem yet:

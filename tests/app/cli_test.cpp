@@ -504,19 +504,32 @@ TEST_F(Cli, CashflowsBadTapeExitsThreeListsRejectsAndWritesTheTable) {
 }
 
 TEST_F(Cli, CashflowsOutputsDoNotDependOnThreads) {
-  std::vector<std::string> files;
-  for (const std::string threads : {"1", "2", "0"}) {
+  // 10,000 loans: three of the engine's 4,096-loan chunks, so two and three threads share the work
+  // (the 2,000-loan demo tape is one chunk, which a single thread runs whatever --threads says).
+  const fs::path tape = scratch_ / "tape-10000.csv";
+  const Outcome made = poolbid({"demo-tape", "--loans", "10000", "--seed", "7", "--out",
+                                tape.string()});
+  ASSERT_EQ(made.exit_code, kOk) << made;
+  ASSERT_EQ(line_count(read_file(tape)), 10001u);  // header + 10,000 loans
+  std::vector<std::string> pools, loan_files;
+  for (const std::string threads : {"1", "2", "3"}) {
     const fs::path csv = scratch_ / ("pool-" + threads + ".csv");
     const fs::path loans = scratch_ / ("loans-" + threads + ".csv");
-    const Outcome r = poolbid(with(kCashflows, {"--severity", "45", "--lag", "6", "--advancing",
-                                                "interest", "--threads", threads, "--csv",
-                                                csv.string(), "--loans", loans.string()}));
-    ASSERT_EQ(r.exit_code, kOk) << r;
-    files.push_back(read_file(csv) + read_file(loans));
+    const Outcome r = poolbid({"cashflows", tape.string(), "--cutoff", kDemoCutoff, "--prepay",
+                               "psa:150", "--default", "sda:200", "--severity", "45", "--lag",
+                               "6", "--advancing", "interest", "--threads", threads, "--csv",
+                               csv.string(), "--loans", loans.string()});
+    ASSERT_EQ(r.exit_code, kOk) << "--threads " << threads << "\n" << r;
+    pools.push_back(read_file(csv));
+    loan_files.push_back(read_file(loans));
   }
-  EXPECT_FALSE(files[0].empty());
-  EXPECT_TRUE(files[0] == files[1]) << "--threads 1 and 2 differ";
-  EXPECT_TRUE(files[0] == files[2]) << "--threads 1 and 0 (every core) differ";
+  ASSERT_GE(line_count(pools[0]), 300u);
+  ASSERT_EQ(line_count(loan_files[0]), 10001u);  // every loan accepted
+  // Byte for byte (EXPECT_TRUE: a failing EXPECT_EQ would print megabytes).
+  EXPECT_TRUE(pools[0] == pools[1]) << "monthly CSV: --threads 1 and 2 differ";
+  EXPECT_TRUE(pools[0] == pools[2]) << "monthly CSV: --threads 1 and 3 differ";
+  EXPECT_TRUE(loan_files[0] == loan_files[1]) << "--loans CSV: --threads 1 and 2 differ";
+  EXPECT_TRUE(loan_files[0] == loan_files[2]) << "--loans CSV: --threads 1 and 3 differ";
 }
 
 TEST_F(Cli, CashflowsLoansCsvHasOneRowPerAcceptedLoan) {
@@ -533,14 +546,31 @@ TEST_F(Cli, CashflowsLoansCsvHasOneRowPerAcceptedLoan) {
   for (const std::string& line : lines) EXPECT_EQ(cells_in(line), 16u) << line;
 }
 
+// The keys of a JSON object, in the order the document has them.
+std::vector<std::string> keys_of(const nlohmann::ordered_json& object) {
+  std::vector<std::string> keys;
+  for (const auto& [key, value] : object.items()) keys.push_back(key);
+  return keys;
+}
+
 TEST_F(Cli, CashflowsJsonHasTheDocumentedKeys) {
   const Outcome r = poolbid(with(kCashflows, {"--json", "--delay", "24"}));
   ASSERT_EQ(r.exit_code, kOk) << r;
   EXPECT_EQ(r.err, "");
-  const json doc = json::parse(r.out);
-  for (const char* key : {"file", "cutoff_date", "payment_delay_days", "assumptions", "summary",
-                          "months", "rejected", "caution"})
-    EXPECT_TRUE(doc.contains(key)) << key;
+  // Parsed keeping the document's key order: the README promises these keys in this order.
+  using Ordered = nlohmann::ordered_json;
+  const Ordered doc = Ordered::parse(r.out);
+  using Keys = std::vector<std::string>;
+  EXPECT_EQ(keys_of(doc), (Keys{"file", "cutoff_date", "payment_delay_days", "assumptions",
+                                "summary", "months", "rejected", "caution"}));
+  EXPECT_EQ(keys_of(doc["assumptions"]), (Keys{"prepay", "default", "severity", "lag_months",
+                                               "advancing", "delinquent_default"}));
+  EXPECT_EQ(keys_of(doc["summary"]),
+            (Keys{"rows_read", "rows_accepted", "rows_rejected", "upb_rejected", "loans",
+                  "cutoff_balance", "months", "last_payment_date", "sched_principal",
+                  "prepayment", "default", "loss", "recovery", "gross_interest", "servicing",
+                  "net_interest", "advanced_interest", "total_principal", "cash_flow",
+                  "cum_loss_pct"}));
   EXPECT_EQ(doc["cutoff_date"], kDemoCutoff);
   EXPECT_EQ(doc["payment_delay_days"], 24);
   EXPECT_EQ(doc["assumptions"]["prepay"], "psa:150");
@@ -549,13 +579,14 @@ TEST_F(Cli, CashflowsJsonHasTheDocumentedKeys) {
   EXPECT_TRUE(doc["rejected"].empty());
   ASSERT_FALSE(doc["months"].empty());
   EXPECT_EQ(doc["months"][0]["date"], "2027-01-25");
-  std::vector<std::string> keys;
-  for (const auto& [key, value] : doc["months"][0].items()) keys.push_back(key);
-  std::vector<std::string> header;
+  // Each month: the monthly CSV's 19 columns in the CSV's order, then advanced_interest.
+  Keys month_keys;
   std::istringstream cells(kCashflowHeader);
-  for (std::string cell; std::getline(cells, cell, ',');) header.push_back(cell);
-  std::sort(header.begin(), header.end());
-  EXPECT_EQ(keys, header);  // json sorts its keys
+  for (std::string cell; std::getline(cells, cell, ',');) month_keys.push_back(cell);
+  ASSERT_EQ(month_keys.size(), 19u);
+  month_keys.push_back("advanced_interest");
+  for (std::size_t m = 0; m < doc["months"].size(); ++m)
+    ASSERT_EQ(keys_of(doc["months"][m]), month_keys) << "month " << m + 1;
 }
 
 TEST_F(Cli, CashflowsAssumptionsFileThenOptionsOverIt) {
@@ -579,6 +610,12 @@ TEST_F(Cli, CashflowsAssumptionsFileThenOptionsOverIt) {
   EXPECT_EQ(bad.out, "");
   EXPECT_NE(bad.err.find("bad.json"), std::string::npos) << bad.err;
   EXPECT_NE(bad.err.find("speed"), std::string::npos) << bad.err;
+  // A key given twice is refused, not read as its last value.
+  std::ofstream(scratch_ / "twice.json") << R"({"prepay": "psa:200", "prepay": "psa:100"})";
+  expect_one_error_line(poolbid({"cashflows", kStrict, "--cutoff", kDemoCutoff, "--assumptions",
+                                 (scratch_ / "twice.json").string()}),
+                        (scratch_ / "twice.json").string() + " key prepay: duplicate key",
+                        kUnusableInput);
   expect_one_error_line(poolbid({"cashflows", kStrict, "--cutoff", kDemoCutoff, "--assumptions",
                                  "demo-pools/no-such.json"}),
                         "demo-pools/no-such.json", kUnusableInput);

@@ -28,7 +28,7 @@ inline double level_payment(double balance, double rate, int months) {
 // A random tape: balances $20k-$1.5M, rates 2-12% in 1/8 steps, servicing 0.125-0.5%, 15-, 20-,
 // 30- and 40-year terms at any age; about 10% interest-only (60 or 120 months), 8% balloons (84,
 // 120 or 180), 5% ARMs (which keep their note rate here), 8% delinquent in some stage; a handful of
-// zero-rate loans and loans in their last month.
+// zero-rate loans (with no servicing fee) and loans in their last month.
 inline std::vector<TestLoan> random_test_loans(std::size_t count, std::uint64_t seed) {
   std::mt19937_64 gen(seed);
   std::uniform_real_distribution<double> u(0.0, 1.0);
@@ -66,7 +66,8 @@ inline std::vector<TestLoan> random_test_loans(std::size_t count, std::uint64_t 
                     : dq < 0.08 ? Delinquency::foreclosure
                     : dq < 0.09 ? Delinquency::unknown
                                 : Delinquency::current;
-    if (i % 97 == 5) t.rate = 0;       // a zero-rate loan now and then
+    // a zero-rate loan now and then, with no fee (a fee may not exceed the note rate)
+    if (i % 97 == 5) t.rate = t.servicing = 0;
     if (i % 89 == 7) t.remaining = 1;  // and one in its last month
     out.push_back(t);
   }
@@ -196,38 +197,6 @@ inline ProjectionOptions one_thread() {
   ProjectionOptions o;
   o.threads = 1;
   return o;
-}
-
-// Curve helpers, so assumption sets read as one line each.
-inline SpeedCurve constant(double v) {
-  SpeedCurve c;
-  c.value = v;
-  return c;
-}
-inline SpeedCurve by_age(CurveShape shape, double multiple) {
-  SpeedCurve c;
-  c.shape = shape;
-  c.clock = CurveClock::loan_age;
-  c.value = multiple;
-  return c;
-}
-inline SpeedCurve vector_curve(std::vector<double> values,
-                               CurveClock clock = CurveClock::projection_month) {
-  SpeedCurve c;
-  c.shape = CurveShape::vector;
-  c.clock = clock;
-  c.values = std::move(values);
-  return c;
-}
-inline SpeedCurve ramp(double from, double to, int months,
-                       CurveClock clock = CurveClock::projection_month) {
-  SpeedCurve c;
-  c.shape = CurveShape::ramp;
-  c.clock = clock;
-  c.ramp_from = from;
-  c.ramp_to = to;
-  c.ramp_months = months;
-  return c;
 }
 
 }  // namespace poolbid::testing_support

@@ -30,20 +30,20 @@ std::vector<Scenario> scenarios() {
   std::vector<Scenario> s;
   s.push_back({"none", Assumptions{}});
   s.push_back({"constant",
-               {.prepay = constant(0.08),
-                .default_rate = constant(0.02),
-                .severity = constant(0.35),
+               {.prepay = constant_curve(0.08),
+                .default_rate = constant_curve(0.02),
+                .severity = constant_curve(0.35),
                 .lag_months = 12}});
   s.push_back({"constant_lag0_advancing",
-               {.prepay = constant(0.08),
-                .default_rate = constant(0.02),
-                .severity = constant(0.35),
+               {.prepay = constant_curve(0.08),
+                .default_rate = constant_curve(0.02),
+                .severity = constant_curve(0.35),
                 .lag_months = 0,
                 .advancing = Advancing::interest}});
   s.push_back({"psa_sda_by_age_advancing",
-               {.prepay = by_age(CurveShape::psa, 1.5),
-                .default_rate = by_age(CurveShape::sda, 2.0),
-                .severity = constant(0.45),
+               {.prepay = standard_curve(CurveShape::psa, 1.5),
+                .default_rate = standard_curve(CurveShape::sda, 2.0),
+                .severity = constant_curve(0.45),
                 .lag_months = 12,
                 .advancing = Advancing::interest}});
   s.push_back(
@@ -53,27 +53,27 @@ std::vector<Scenario> scenarios() {
         .severity = vector_curve({0.10, 0.20, 0.30, 0.40, 0.50, 0.60, 0.45}),
         .lag_months = 6}});
   s.push_back({"ramps_delinquent_advancing",
-               {.prepay = ramp(0.02, 0.15, 24),
-                .default_rate = ramp(0.0, 0.05, 36, CurveClock::loan_age),
-                .severity = ramp(0.60, 0.30, 24),
+               {.prepay = ramp_curve(0.02, 0.15, 24),
+                .default_rate = ramp_curve(0.0, 0.05, 36, CurveClock::loan_age),
+                .severity = ramp_curve(0.60, 0.30, 24),
                 .lag_months = 12,
                 .advancing = Advancing::interest,
                 .delinquent_default = true}});
   s.push_back({"delinquent_only_total_loss",
-               {.prepay = constant(0),
-                .default_rate = constant(0),
-                .severity = constant(1.0),
+               {.prepay = constant_curve(0),
+                .default_rate = constant_curve(0),
+                .severity = constant_curve(1.0),
                 .lag_months = 12,
                 .advancing = Advancing::interest,
                 .delinquent_default = true}});
   s.push_back({"heavy_default_long_lag_advancing",
-               {.prepay = constant(0.05),
-                .default_rate = constant(0.30),
-                .severity = constant(0.90),
+               {.prepay = constant_curve(0.05),
+                .default_rate = constant_curve(0.30),
+                .severity = constant_curve(0.90),
                 .lag_months = 24,
                 .advancing = Advancing::interest}});
   s.push_back(
-      {"prepay_only_psa", {.prepay = by_age(CurveShape::psa, 3.0), .default_rate = constant(0)}});
+      {"prepay_only_psa", {.prepay = standard_curve(CurveShape::psa, 3.0), .default_rate = constant_curve(0)}});
   return s;
 }
 
@@ -498,12 +498,12 @@ TEST(ParIdentity, PresentValueAtTheNetRateIsTheBalance) {
     double note, servicing;
   };
   const RateGroup groups[] = {{0.06, 0.0025}, {0.03, 0.005}, {0.12, 0.00125}, {0.0, 0.0}};
-  const SpeedCurve speeds[] = {constant(0.0),
-                               constant(0.08),
-                               constant(0.60),
-                               by_age(CurveShape::psa, 3.0),
+  const SpeedCurve speeds[] = {constant_curve(0.0),
+                               constant_curve(0.08),
+                               constant_curve(0.60),
+                               standard_curve(CurveShape::psa, 3.0),
                                vector_curve({0.05, 0.5, 0.01, 0.2, 0.07}),
-                               ramp(0.0, 0.3, 40)};
+                               ramp_curve(0.0, 0.3, 40)};
   std::uint64_t seed = 7;
   for (const RateGroup& g : groups) {
     std::vector<TestLoan> tape = random_test_loans(120, ++seed);

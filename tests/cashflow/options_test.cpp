@@ -1,9 +1,10 @@
 // Tests project_pool's loan types and options one at a time: interest-only and balloon loans,
 // advancing, lag, delinquent default, zero-rate loans, coupon paths, severity by month of default,
-// where the table ends, and bad options.
+// where the table ends, and bad options and inputs.
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <string>
 #include <stdexcept>
 #include <vector>
 
@@ -37,15 +38,17 @@ TEST(InterestOnly, PaysInterestOnlyThenAmortisesToZero) {
   ASSERT_EQ(f.months, 350);
   for (int t = 1; t <= 110; ++t) {  // loan months 11..120
     ASSERT_EQ(f.sched_principal[t - 1], 0.0) << t;
-    ASSERT_NEAR(f.gross_interest[t - 1], 1'500.0, 1e-9) << t;  // 300,000 x 6% / 12
-    ASSERT_NEAR(f.net_interest[t - 1], 1'437.5, 1e-9) << t;    // 300,000 x 5.75% / 12
+    ASSERT_NEAR(f.gross_interest[t - 1], 1'500.0, 1e-9) << t;  // hand-computed: 300,000 x 6% / 12
+    ASSERT_NEAR(f.net_interest[t - 1], 1'437.5, 1e-9) << t;  // hand-computed: 300,000 x 5.75% / 12
     ASSERT_EQ(f.begin_balance[t - 1], 300'000.0) << t;
   }
   // Month 111 (loan month 121): level payment on 300,000 over the 240 months left.
+  // identity: the annuity formula, written independently in flows_support.h
   const double level = level_payment(300'000, 0.06, 240);
   EXPECT_NEAR(payment(f, 111), level, 1e-8);
   EXPECT_GT(f.sched_principal[110], 0.0);
-  // the last month pays the balance left, which carries the rounding of 240 months
+  // identity: a level payment every month; the last pays the balance left, which carries the
+  // rounding of 240 months
   for (int t = 112; t <= 350; ++t) ASSERT_NEAR(payment(f, t), level, 1e-6) << t;
   EXPECT_EQ(f.end_balance[349], 0.0);  // identity: amortises to exactly zero
 }
@@ -61,8 +64,9 @@ TEST(InterestOnly, PastTheInterestOnlyPeriodAmortisesFromMonthOne) {
                                         .io_months = 120}});
   const PoolFlows f = project_pool(loans, Assumptions{}).pool;
   ASSERT_EQ(f.months, 230);
+  // identity: the annuity formula over the 230 months left
   EXPECT_NEAR(payment(f, 1), level_payment(250'000, 0.05, 230), 1e-8);
-  EXPECT_EQ(f.end_balance.back(), 0.0);
+  EXPECT_EQ(f.end_balance.back(), 0.0);  // identity: amortises to exactly zero
 }
 
 TEST(Balloon, PaysTheBalanceAtTheBalloonMonth) {
@@ -77,15 +81,16 @@ TEST(Balloon, PaysTheBalanceAtTheBalloonMonth) {
                                         .balloon_month = 84}});
   const PoolFlows f = project_pool(loans, Assumptions{}).pool;
   ASSERT_EQ(f.months, 74);
+  // identity: the annuity formula, and the balance amortised independently here
   const double level = level_payment(200'000, 0.07, 350);
-  double balance = 200'000;  // independently amortised
+  double balance = 200'000;
   for (int t = 1; t <= 73; ++t) {
     ASSERT_NEAR(payment(f, t), level, 1e-8) << t;
     balance = balance * (1 + 0.07 / 12) - level;
   }
   EXPECT_NEAR(f.begin_balance[73], balance, 1e-6);
-  EXPECT_EQ(f.sched_principal[73], f.begin_balance[73]);  // the balloon: everything left
-  EXPECT_NEAR(f.gross_interest[73], balance * 0.07 / 12, 1e-8);
+  EXPECT_EQ(f.sched_principal[73], f.begin_balance[73]);  // identity: the balloon: all that is left
+  EXPECT_NEAR(f.gross_interest[73], balance * 0.07 / 12, 1e-8);  // identity: balance x rate / 12
   EXPECT_EQ(f.end_balance[73], 0.0);
 }
 
@@ -98,7 +103,7 @@ TEST(Balloon, PrepaymentStopsAtTheBalloon) {
                                         .original_term = 360,
                                         .amortization = Amortization::balloon,
                                         .balloon_month = 84}});
-  const Assumptions a{.prepay = constant(0.10), .default_rate = constant(0)};
+  const Assumptions a{.prepay = constant_curve(0.10), .default_rate = constant_curve(0)};
   const PoolFlows f = project_pool(loans, a).pool;
   ASSERT_EQ(f.months, 74);
   EXPECT_EQ(f.prepayment[73], 0.0);
@@ -120,9 +125,9 @@ LoanArrays one_loan(int remaining = 100) {
 }
 
 TEST(Advancing, TotalSeverityRecoversNothingAndAdvancesInterest) {
-  const Assumptions a{.prepay = constant(0),
-                      .default_rate = constant(0.05),
-                      .severity = constant(1.0),
+  const Assumptions a{.prepay = constant_curve(0),
+                      .default_rate = constant_curve(0.05),
+                      .severity = constant_curve(1.0),
                       .lag_months = 12,
                       .advancing = Advancing::interest};
   const PoolFlows f = project_pool(one_loan(), a).pool;
@@ -134,20 +139,19 @@ TEST(Advancing, TotalSeverityRecoversNothingAndAdvancesInterest) {
   // identity: net interest includes the advance
   EXPECT_NEAR(f.net_interest[0],
               (f.begin_balance[0] - f.defaults[0]) * 0.0625 / 12 + f.advanced_interest[0], 1e-8);
-  for (int t = 1; t <= 100; ++t)
-    ASSERT_NEAR(f.loss[t + 12 - 1], f.defaults[t - 1], 1e-9)
-        << t;  // loss = D when nothing comes back
+  // identity: loss = D when nothing comes back
+  for (int t = 1; t <= 100; ++t) ASSERT_NEAR(f.loss[t + 12 - 1], f.defaults[t - 1], 1e-9) << t;
   // after the last default month, the cohorts still awaiting liquidation run off one by one
   EXPECT_GT(f.advanced_interest[110], 0.0);
-  EXPECT_NEAR(f.advanced_interest[110], f.defaults[99] * 0.0625 / 12,
-              1e-9);                         // month 111: only month 100's
+  // identity: month 111 advances on month 100's defaults only, at the 6.25% net rate
+  EXPECT_NEAR(f.advanced_interest[110], f.defaults[99] * 0.0625 / 12, 1e-9);
   EXPECT_EQ(f.advanced_interest[111], 0.0);  // month 112: liquidation, no advance
 }
 
 TEST(Advancing, RecoveryRepaysTheAdvances) {
-  const Assumptions a{.prepay = constant(0),
-                      .default_rate = constant(0.05),
-                      .severity = constant(0.30),
+  const Assumptions a{.prepay = constant_curve(0),
+                      .default_rate = constant_curve(0.05),
+                      .severity = constant_curve(0.30),
                       .lag_months = 12,
                       .advancing = Advancing::interest};
   const PoolFlows f = project_pool(one_loan(), a).pool;
@@ -155,34 +159,36 @@ TEST(Advancing, RecoveryRepaysTheAdvances) {
   const double n = 0.065 - 0.0025;
   for (int t = 1; t <= 100; ++t) {
     const double d = f.defaults[t - 1];
-    // DESIGN.md 4.7: recovery = (1 - severity) D - advances; here 12 months of D n / 12
+    // identity (DESIGN.md 4.7): recovery = (1 - severity) D - advances; here 12 months of D n / 12
     ASSERT_NEAR(f.recovery[t + 11], 0.70 * d - 12 * d * n / 12, 1e-9) << t;
     ASSERT_NEAR(f.loss[t + 11], d - (0.70 * d - 12 * d * n / 12), 1e-9) << t;
   }
 }
 
 TEST(Advancing, NoneAdvancesNothing) {
-  const Assumptions a{.prepay = constant(0),
-                      .default_rate = constant(0.05),
-                      .severity = constant(0.30),
+  const Assumptions a{.prepay = constant_curve(0),
+                      .default_rate = constant_curve(0.05),
+                      .severity = constant_curve(0.30),
                       .lag_months = 12};
   const PoolFlows f = project_pool(one_loan(), a).pool;
   for (int t = 1; t <= f.months; ++t) ASSERT_EQ(f.advanced_interest[t - 1], 0.0) << t;
+  // identity: recovery = (1 - severity) D, nothing taken back for advances
   for (int t = 1; t <= 100; ++t) ASSERT_NEAR(f.recovery[t + 11], 0.70 * f.defaults[t - 1], 1e-9);
 }
 
 TEST(Lag, ZeroLiquidatesInTheMonthOfDefault) {
   for (Advancing adv : {Advancing::none, Advancing::interest}) {
     SCOPED_TRACE(to_string(adv));
-    const Assumptions a{.prepay = constant(0),
-                        .default_rate = constant(0.05),
-                        .severity = constant(0.40),
+    const Assumptions a{.prepay = constant_curve(0),
+                        .default_rate = constant_curve(0.05),
+                        .severity = constant_curve(0.40),
                         .lag_months = 0,
                         .advancing = adv};
     const PoolFlows f = project_pool(one_loan(), a).pool;
     ASSERT_EQ(f.months, 100);  // no month past the last payment
     for (int t = 1; t <= 100; ++t) {
       ASSERT_GT(f.defaults[t - 1], 0.0) << t;
+      // identity: recovery (1 - severity) D and loss severity x D, in the month of default
       ASSERT_NEAR(f.recovery[t - 1], 0.60 * f.defaults[t - 1], 1e-9) << t;
       ASSERT_NEAR(f.loss[t - 1], 0.40 * f.defaults[t - 1], 1e-9) << t;
       ASSERT_EQ(f.advanced_interest[t - 1], 0.0) << t;  // nothing to advance with no wait
@@ -192,15 +198,16 @@ TEST(Lag, ZeroLiquidatesInTheMonthOfDefault) {
 
 TEST(Severity, VectorByProjectionMonthAppliesToTheDefaultMonthsCohort) {
   const std::vector<double> severities = {0.10, 0.20, 0.30, 0.40, 0.50, 0.60, 0.70, 0.80};
-  const Assumptions a{.prepay = constant(0),
-                      .default_rate = constant(0.10),
+  const Assumptions a{.prepay = constant_curve(0),
+                      .default_rate = constant_curve(0.10),
                       .severity = vector_curve(severities),
                       .lag_months = 6};
   const PoolFlows f = project_pool(one_loan(), a).pool;
   ASSERT_EQ(f.months, 106);
   for (int t = 1; t <= 100; ++t) {
     const double sev = severities[std::min<std::size_t>(t, severities.size()) - 1];
-    // the severity of month t (the default month), not of month t + 6 (the liquidation month)
+    // identity: the severity of month t (the default month), not of month t + 6 (the liquidation
+    // month), times the defaulted balance
     ASSERT_NEAR(f.loss[t + 5], sev * f.defaults[t - 1], 1e-9) << t;
     ASSERT_NEAR(f.recovery[t + 5], (1 - sev) * f.defaults[t - 1], 1e-9) << t;
   }
@@ -208,10 +215,11 @@ TEST(Severity, VectorByProjectionMonthAppliesToTheDefaultMonthsCohort) {
 
 TEST(Severity, ByLoanAgeReadsTheAgeAtDefault) {
   // Severity ramps with loan age; the loan is 20 months old at cut-off, so month 1 reads age 21.
-  const SpeedCurve sev = ramp(0.0, 0.80, 40, CurveClock::loan_age);
+  const SpeedCurve sev = ramp_curve(0.0, 0.80, 40, CurveClock::loan_age);
   const Assumptions a{
-      .prepay = constant(0), .default_rate = constant(0.10), .severity = sev, .lag_months = 3};
+      .prepay = constant_curve(0), .default_rate = constant_curve(0.10), .severity = sev, .lag_months = 3};
   const PoolFlows f = project_pool(one_loan(), a).pool;
+  // identity: loss = severity at the loan's age in the month of default x the defaulted balance
   for (int t = 1; t <= 30; ++t)
     ASSERT_NEAR(f.loss[t + 2], curve_value(sev, 20 + t) * f.defaults[t - 1], 1e-9) << t;
 }
@@ -232,9 +240,9 @@ TEST(DelinquentDefault, OnlyNinetyPlusAndForeclosureDefaultInMonthOne) {
   const LoanArrays loans = make_loans(tape);
   ProjectionOptions o;
   o.loan_totals = true;
-  const Assumptions on{.prepay = constant(0),
-                       .default_rate = constant(0),
-                       .severity = constant(0.5),
+  const Assumptions on{.prepay = constant_curve(0),
+                       .default_rate = constant_curve(0),
+                       .severity = constant_curve(0.5),
                        .lag_months = 12,
                        .delinquent_default = true};
   const Projection p = project_pool(loans, on, o);
@@ -242,17 +250,19 @@ TEST(DelinquentDefault, OnlyNinetyPlusAndForeclosureDefaultInMonthOne) {
     const bool defaults =
         statuses[i] == Delinquency::dq90_plus || statuses[i] == Delinquency::foreclosure;
     SCOPED_TRACE(loans.loan_id[i]);
+    // identity: a delinquent loan defaults its whole balance and loses half of it (severity 50%)
     EXPECT_EQ(p.loans.defaults[i], defaults ? loans.current_balance[i] : 0.0);
     EXPECT_NEAR(p.loans.loss[i], defaults ? 0.5 * loans.current_balance[i] : 0.0, 1e-9);
     EXPECT_EQ(p.loans.sched_principal[i] + p.loans.prepayment[i] > 0, !defaults);
   }
-  EXPECT_EQ(p.pool.defaults[0], 104'000.0 + 105'000.0);
+  EXPECT_EQ(p.pool.defaults[0], 104'000.0 + 105'000.0);  // hand-computed: the two loans' balances
   for (int t = 2; t <= p.pool.months; ++t) ASSERT_EQ(p.pool.defaults[t - 1], 0.0) << t;
-  EXPECT_NEAR(p.pool.loss[12] + p.pool.recovery[12], 209'000.0, 1e-9);  // month 13
+  // hand-computed: month 13 (lag 12) liquidates 104,000 + 105,000
+  EXPECT_NEAR(p.pool.loss[12] + p.pool.recovery[12], 209'000.0, 1e-9);
 
-  const Assumptions off{.prepay = constant(0),
-                        .default_rate = constant(0),
-                        .severity = constant(0.5),
+  const Assumptions off{.prepay = constant_curve(0),
+                        .default_rate = constant_curve(0),
+                        .severity = constant_curve(0.5),
                         .lag_months = 12};
   const Projection q = project_pool(loans, off, o);
   for (std::size_t i = 0; i < loans.size(); ++i) EXPECT_EQ(q.loans.defaults[i], 0.0);
@@ -272,14 +282,14 @@ TEST(ZeroRate, AmortisesStraightLine) {
   const PoolFlows f = project_pool(loans, Assumptions{}).pool;
   ASSERT_EQ(f.months, 120);
   for (int t = 1; t <= 120; ++t) {
-    ASSERT_NEAR(f.sched_principal[t - 1], 1'000.0, 1e-9) << t;  // A / m
+    ASSERT_NEAR(f.sched_principal[t - 1], 1'000.0, 1e-9) << t;  // hand-computed: 120,000 / 120
     ASSERT_EQ(f.gross_interest[t - 1], 0.0) << t;
   }
   EXPECT_EQ(f.end_balance.back(), 0.0);
 
-  // With prepayment the payment is still A / m on the balance left.
+  // identity: with prepayment the payment is still the balance left / the months left.
   const PoolFlows g =
-      project_pool(loans, Assumptions{.prepay = constant(0.2), .default_rate = constant(0)}).pool;
+      project_pool(loans, Assumptions{.prepay = constant_curve(0.2), .default_rate = constant_curve(0)}).pool;
   for (int t = 1; t <= g.months; ++t)
     ASSERT_NEAR(g.sched_principal[t - 1], g.begin_balance[t - 1] / (120 - t + 1), 1e-9) << t;
 }
@@ -311,8 +321,8 @@ TEST(CouponPaths, PathAtTheNoteRateChangesNothing) {
   paths.months = 48;
   paths.loans = {1};
   paths.rates.assign(48, 0.06);
-  const Assumptions a{.prepay = constant(0.08),
-                      .default_rate = constant(0.01),
+  const Assumptions a{.prepay = constant_curve(0.08),
+                      .default_rate = constant_curve(0.01),
                       .lag_months = 6,
                       .advancing = Advancing::interest};
   ProjectionOptions o;
@@ -340,7 +350,8 @@ TEST(CouponPaths, StepUpReamortisesOverTheMonthsLeft) {
   const PoolFlows f = project_pool(single_loan(loans, 1), Assumptions{}, o_alone).pool;
   ASSERT_EQ(f.months, 300);
 
-  // Independently: 12 months of level payment at 6% over 300 months, then 8% over 288.
+  // identity: 12 months of level payment at 6% over 300 months, then 8% over 288, amortised
+  // independently here.
   const double first = level_payment(400'000, 0.06, 300);
   double balance = 400'000;
   for (int t = 1; t <= 12; ++t) {
@@ -353,7 +364,7 @@ TEST(CouponPaths, StepUpReamortisesOverTheMonthsLeft) {
   EXPECT_NEAR(f.gross_interest[12], balance * 0.08 / 12, 1e-8);
   EXPECT_NEAR(f.net_interest[12], balance * (0.08 - 0.00375) / 12, 1e-8);
   for (int t = 14; t <= 23; ++t) ASSERT_NEAR(payment(f, t), stepped, 1e-7) << t;
-  // Month 24 on: 9%, the path's last rate, holds to maturity.
+  // identity: month 24 on, 9% (the path's last rate) holds to maturity.
   const double b24 = f.begin_balance[23];
   const double last = level_payment(b24, 0.09, 300 - 23);
   for (int t = 24; t <= 300; ++t) {
@@ -362,13 +373,180 @@ TEST(CouponPaths, StepUpReamortisesOverTheMonthsLeft) {
   }
   EXPECT_EQ(f.end_balance.back(), 0.0);
 
-  // The unlisted loan keeps its note rate: the pool is it plus the ARM.
+  // identity: the unlisted loan keeps its note rate; the pool is it plus the ARM.
   const PoolFlows fixed = project_pool(single_loan(loans, 0), Assumptions{}).pool;
   for (int t = 1; t <= 300; ++t)
     ASSERT_NEAR(p.pool.gross_interest[t - 1], fixed.gross_interest[t - 1] + f.gross_interest[t - 1],
                 1e-8)
         << t;
-  EXPECT_NEAR(fixed.gross_interest[0], 300'000 * 0.055 / 12, 1e-9);
+  EXPECT_NEAR(fixed.gross_interest[0], 300'000 * 0.055 / 12, 1e-9);  // hand-computed
+}
+
+TEST(CouponPaths, PathAtANoteRateThatTwelfthsDoNotRoundTripChangesNothing) {
+  // 0.0525 / 12 * 12 != 0.0525 in doubles (likewise 5.375% and 5.625%): a path at the note rate
+  // must still read as no change, whatever the loan type, so the results are bit-identical.
+  for (const double rate : {0.0525, 0.05375, 0.05625}) {
+    SCOPED_TRACE(::testing::Message() << "note rate " << rate);
+    const LoanArrays loans = make_loans({{.id = "A",
+                                          .upb = 400'000,
+                                          .rate = rate,
+                                          .remaining = 300,
+                                          .age = 60,
+                                          .servicing = 0.00375,
+                                          .amortization = Amortization::arm},
+                                         {.id = "IO",
+                                          .upb = 250'000,
+                                          .rate = rate,
+                                          .remaining = 340,
+                                          .age = 20,
+                                          .amortization = Amortization::interest_only,
+                                          .io_months = 120},
+                                         {.id = "B",
+                                          .upb = 150'000,
+                                          .rate = rate,
+                                          .remaining = 350,
+                                          .age = 10,
+                                          .amortization = Amortization::balloon,
+                                          .balloon_month = 84}});
+    CouponPaths paths;
+    paths.months = 48;
+    paths.loans = {0, 1, 2};
+    paths.rates.assign(3 * 48, rate);
+    const Assumptions a{.prepay = constant_curve(0.08),
+                        .default_rate = constant_curve(0.01),
+                        .lag_months = 6,
+                        .advancing = Advancing::interest};
+    ProjectionOptions o;
+    o.loan_totals = true;
+    const Projection without = project_pool(loans, a, o);
+    o.coupons = &paths;
+    const Projection with = project_pool(loans, a, o);
+    expect_identical(with.pool, without.pool);  // identity: the note rate every month is no change
+    EXPECT_EQ(with.loans.cash_flow, without.loans.cash_flow);
+    EXPECT_EQ(with.loans.gross_interest, without.loans.gross_interest);
+    EXPECT_EQ(with.loans.wal_years, without.loans.wal_years);
+  }
+}
+
+TEST(CouponPaths, StepDuringInterestOnlyPaysTheNewRateThenAmortisesAtIt) {
+  // 300 months left, 60 months old, interest-only for 120 months from the first payment: interest
+  // only through projection month 60, then level pay over the 240 months left. The rate steps from
+  // 6% to 7% in month 25 (mid-way through the interest-only months) or in month 60 (the last one).
+  for (const int step : {25, 60}) {
+    SCOPED_TRACE(::testing::Message() << "step in month " << step);
+    const LoanArrays loans = make_loans({{.id = "IO",
+                                          .upb = 400'000,
+                                          .rate = 0.06,
+                                          .remaining = 300,
+                                          .age = 60,
+                                          .servicing = 0.00375,
+                                          .amortization = Amortization::interest_only,
+                                          .io_months = 120}});
+    CouponPaths paths;
+    paths.months = step;
+    paths.loans = {0};
+    for (int t = 1; t <= step; ++t) paths.rates.push_back(t < step ? 0.06 : 0.07);
+    ProjectionOptions o;
+    o.coupons = &paths;
+    const PoolFlows f = project_pool(loans, Assumptions{}, o).pool;
+    ASSERT_EQ(f.months, 300);
+    for (int t = 1; t <= 60; ++t) {
+      const double rate = t < step ? 0.06 : 0.07;
+      ASSERT_EQ(f.begin_balance[t - 1], 400'000.0) << t;
+      ASSERT_EQ(f.sched_principal[t - 1], 0.0) << t;
+      // hand-computed: 400,000 x 6% / 12 = 2,000 before the step, x 7% / 12 = 2,333.33 after
+      ASSERT_NEAR(f.gross_interest[t - 1], 400'000 * rate / 12, 1e-9) << t;
+      ASSERT_NEAR(f.net_interest[t - 1], 400'000 * (rate - 0.00375) / 12, 1e-9) << t;
+    }
+    // identity: from month 61, the level payment on 400,000 at 7% over 240 months, amortised
+    // independently here.
+    const double level = level_payment(400'000, 0.07, 240);
+    double balance = 400'000;
+    for (int t = 61; t <= 300; ++t) {
+      ASSERT_NEAR(f.begin_balance[t - 1], balance, 1e-6) << t;
+      ASSERT_NEAR(f.gross_interest[t - 1], balance * 0.07 / 12, 1e-8) << t;
+      ASSERT_NEAR(payment(f, t), level, 1e-6) << t;
+      balance = balance * (1 + 0.07 / 12) - level;
+    }
+    EXPECT_NEAR(f.sched_principal[60], level - 400'000 * 0.07 / 12, 1e-8);
+    EXPECT_EQ(f.end_balance.back(), 0.0);  // identity: amortises to exactly zero
+  }
+}
+
+TEST(CouponPaths, StepUpUnderPrepaymentAndDefaultMatchesASingleLoanAmortisation) {
+  // The ARM steps from 6% to 8% in month 13, under 10 CPR and 2 CDR, severity 35%, liquidated in
+  // the month of default, no advancing. Checked month by month against an amortisation written
+  // here: defaults off the beginning balance, the level payment recomputed each month from the
+  // performing balance, the month's rate and the months left, prepayment on what is left.
+  const LoanArrays loans = make_loans({{.id = "A",
+                                        .upb = 400'000,
+                                        .rate = 0.06,
+                                        .remaining = 300,
+                                        .age = 60,
+                                        .servicing = 0.00375,
+                                        .amortization = Amortization::arm}});
+  CouponPaths paths;
+  paths.months = 13;  // month 13's 8% holds after the path ends
+  paths.loans = {0};
+  for (int t = 1; t <= 13; ++t) paths.rates.push_back(t < 13 ? 0.06 : 0.08);
+  const Assumptions a{.prepay = constant_curve(0.10),
+                      .default_rate = constant_curve(0.02),
+                      .severity = constant_curve(0.35),
+                      .lag_months = 0,
+                      .advancing = Advancing::none};
+  ProjectionOptions o;
+  o.coupons = &paths;
+  const PoolFlows f = project_pool(loans, a, o).pool;
+  ASSERT_EQ(f.months, 300);
+
+  const double smm = 1 - std::pow(1 - 0.10, 1.0 / 12);  // common practice: SMM from CPR
+  const double mdr = 1 - std::pow(1 - 0.02, 1.0 / 12);  // common practice: MDR from CDR
+  const double fee = 0.00375;
+  const int months = 300;
+  std::vector<double> begin, defaults, sched, prepay, gross, servicing, net, recovery, loss,
+      total_principal, cash, end;
+  double balance = 400'000;
+  for (int t = 1; t <= months; ++t) {
+    const double rate = t < 13 ? 0.06 : 0.08;
+    const double d = balance * mdr;
+    const double performing = balance - d;
+    const double interest = performing * rate / 12;
+    const bool last = t == months;
+    const double principal =
+        last ? performing : level_payment(performing, rate, months - t + 1) - interest;
+    const double prepaid = last ? 0.0 : smm * (performing - principal);
+    const double kept = d * (1 - 0.35);  // lag 0: recovered in the month of default
+    begin.push_back(balance);
+    defaults.push_back(d);
+    sched.push_back(principal);
+    prepay.push_back(prepaid);
+    gross.push_back(interest);
+    servicing.push_back(performing * fee / 12);
+    net.push_back(performing * (rate - fee) / 12);
+    recovery.push_back(kept);
+    loss.push_back(d - kept);
+    total_principal.push_back(principal + prepaid + kept);
+    cash.push_back(net.back() + total_principal.back());
+    balance = performing - principal - prepaid;
+    end.push_back(balance);
+  }
+  // identity: the engine's carried-forward payment equals the payment recomputed each month
+  constexpr double kRel = 1e-8;
+  expect_series_near("begin_balance", f.begin_balance, begin, kRel);
+  expect_series_near("defaults", f.defaults, defaults, kRel);
+  expect_series_near("sched_principal", f.sched_principal, sched, kRel);
+  expect_series_near("prepayment", f.prepayment, prepay, kRel);
+  expect_series_near("gross_interest", f.gross_interest, gross, kRel);
+  expect_series_near("servicing", f.servicing, servicing, kRel);
+  expect_series_near("net_interest", f.net_interest, net, kRel);
+  expect_series_near("recovery", f.recovery, recovery, kRel);
+  expect_series_near("loss", f.loss, loss, kRel);
+  expect_series_near("total_principal", f.total_principal, total_principal, kRel);
+  expect_series_near("cash_flow", f.cash_flow, cash, kRel);
+  expect_series_near("end_balance", f.end_balance, end, kRel);
+  EXPECT_EQ(f.end_balance.back(), 0.0);  // identity: amortises to exactly zero
+  // The step itself: month 13's interest at 8% on month 13's performing balance.
+  EXPECT_NEAR(f.gross_interest[12], (begin[12] - defaults[12]) * 0.08 / 12, 1e-8);
 }
 
 TEST(CouponPaths, BadPathsAreAnError) {
@@ -385,6 +563,50 @@ TEST(CouponPaths, BadPathsAreAnError) {
   EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
 }
 
+// ---- inputs the engine refuses
+// ----------------------------------------------------------------------
+
+TEST(BadInputs, ServicingFeeAboveTheNoteRateIsAnError) {
+  // A fee above the note rate would make net interest negative.
+  const LoanArrays loans = make_loans({{.id = "OK", .upb = 100'000, .rate = 0.05},
+                                       {.id = "FEE", .upb = 100'000, .rate = 0.002,
+                                        .servicing = 0.0025}});
+  try {
+    project_pool(loans, Assumptions{});
+    FAIL() << "accepted";
+  } catch (const std::invalid_argument& e) {
+    EXPECT_NE(std::string(e.what()).find("'FEE' (row 3)"), std::string::npos) << e.what();
+  }
+  // A fee equal to the note rate is allowed (net interest 0), so is a zero-rate loan with no fee.
+  const LoanArrays equal = make_loans(
+      {{.id = "EQ", .upb = 100'000, .rate = 0.0025, .servicing = 0.0025},
+       {.id = "Z", .upb = 100'000, .rate = 0.0, .servicing = 0.0}});
+  const PoolFlows f = project_pool(equal, Assumptions{}).pool;
+  EXPECT_EQ(f.net_interest[0], 0.0);  // identity: (rate - fee) = 0 on both loans
+  EXPECT_THROW(project_pool(make_loans({{.id = "Z0", .upb = 1'000, .rate = 0.0}}), Assumptions{}),
+               std::invalid_argument);  // the default 0.25% fee on a zero-rate loan
+}
+
+TEST(BadInputs, CurvesOutsideZeroToOneHundredPercentAreAnError) {
+  const LoanArrays loans = one_loan();
+  const Assumptions fine{.prepay = constant_curve(1.0), .default_rate = constant_curve(1.0),
+                         .severity = constant_curve(1.0)};
+  EXPECT_NO_THROW(project_pool(loans, fine));  // 100% is the most each may be
+  const Assumptions bad[] = {
+      {.prepay = constant_curve(1.5)},
+      {.prepay = constant_curve(-0.01)},
+      {.prepay = vector_curve({0.05, 0.06, 1.2})},
+      {.default_rate = constant_curve(1.5)},
+      {.default_rate = ramp_curve(0.0, -0.02, 12)},
+      {.severity = constant_curve(-0.1)},
+      {.severity = constant_curve(1.01)},
+      {.severity = vector_curve({0.4, -0.2})},
+      {.prepay = constant_curve(std::nan(""))},
+  };
+  for (std::size_t k = 0; k < std::size(bad); ++k)
+    EXPECT_THROW(project_pool(loans, bad[k]), std::invalid_argument) << "case " << k;
+}
+
 // ---- where the table ends
 // ---------------------------------------------------------------------------
 
@@ -392,21 +614,21 @@ TEST(TableLength, RunsToTheLastMonthWithCashOrLiquidation) {
   ProjectionOptions o;
   o.loan_totals = true;
   EXPECT_EQ(project_pool(one_loan(100), Assumptions{}, o).pool.months, 100);
-  // Defaults in month 100 liquidate in month 112.
+  // identity: defaults in month 100 liquidate in month 112.
   const Assumptions defaults{
-      .prepay = constant(0), .default_rate = constant(0.02), .lag_months = 12};
+      .prepay = constant_curve(0), .default_rate = constant_curve(0.02), .lag_months = 12};
   EXPECT_EQ(project_pool(one_loan(100), defaults, o).pool.months, 112);
-  // 100% CPR pays everything in month 1.
+  // identity: 100% CPR pays everything in month 1.
   const Projection all_at_once = project_pool(
-      one_loan(100), Assumptions{.prepay = constant(1.0), .default_rate = constant(0)}, o);
+      one_loan(100), Assumptions{.prepay = constant_curve(1.0), .default_rate = constant_curve(0)}, o);
   EXPECT_EQ(all_at_once.pool.months, 1);
   EXPECT_EQ(all_at_once.loans.last_month[0], 1);
   EXPECT_NEAR(all_at_once.pool.total_principal[0], 500'000, 1e-6);
   // A total loss liquidates with no cash: the table still shows the liquidation month, while the
   // loan's last month with cash is its last payment.
-  const Assumptions total_loss{.prepay = constant(0),
-                               .default_rate = constant(0.02),
-                               .severity = constant(1.0),
+  const Assumptions total_loss{.prepay = constant_curve(0),
+                               .default_rate = constant_curve(0.02),
+                               .severity = constant_curve(1.0),
                                .lag_months = 12};
   const Projection p = project_pool(one_loan(100), total_loss, o);
   EXPECT_EQ(p.pool.months, 112);
@@ -427,7 +649,7 @@ TEST(Discount, FactorsMustCoverEveryMonth) {
   ProjectionOptions o;
   o.loan_totals = true;
   o.discount = discount;
-  const Assumptions no_lag{.prepay = constant(0), .default_rate = constant(0), .lag_months = 0};
+  const Assumptions no_lag{.prepay = constant_curve(0), .default_rate = constant_curve(0), .lag_months = 0};
   const Projection p = project_pool(one_loan(100), no_lag, o);
   ASSERT_EQ(p.pool.months, 100);
   ASSERT_EQ(p.loans.present_value.size(), 1u);
@@ -437,7 +659,7 @@ TEST(Discount, FactorsMustCoverEveryMonth) {
   EXPECT_THROW(project_pool(one_loan(100), no_lag, o), std::invalid_argument);
   // with defaults the table runs 12 months longer, and so must the factors
   o.discount = discount;
-  const Assumptions defaults{.prepay = constant(0), .default_rate = constant(0.02), .lag_months = 12};
+  const Assumptions defaults{.prepay = constant_curve(0), .default_rate = constant_curve(0.02), .lag_months = 12};
   EXPECT_THROW(project_pool(one_loan(100), defaults, o), std::invalid_argument);
 }
 
@@ -449,9 +671,9 @@ TEST(Discount, AdvancesAreDiscountedInTheMonthsTheyArePaid) {
   ProjectionOptions o;
   o.loan_totals = true;
   o.discount = discount;
-  const Assumptions a{.prepay = constant(0.06),
-                      .default_rate = constant(0.05),
-                      .severity = constant(0.35),
+  const Assumptions a{.prepay = constant_curve(0.06),
+                      .default_rate = constant_curve(0.05),
+                      .severity = constant_curve(0.35),
                       .lag_months = 12,
                       .advancing = Advancing::interest};
   const Projection p = project_pool(one_loan(100), a, o);

@@ -12,7 +12,6 @@
 namespace poolbid {
 namespace {
 
-using testing_support::by_age;
 using testing_support::expect_series_near;
 using testing_support::kDollarColumns;
 using testing_support::make_loans;
@@ -35,7 +34,7 @@ LoanArrays textbook_pool(int pieces) {
 
 Assumptions psa_100() {
   Assumptions a;
-  a.prepay = by_age(CurveShape::psa, 1.0);  // 100 PSA on the loan-age clock
+  a.prepay = standard_curve(CurveShape::psa, 1.0);  // 100 PSA on the loan-age clock
   return a;                                 // no default
 }
 

@@ -62,17 +62,17 @@ TEST(Threads, SameBitsForAnyThreadCount) {
     discount[t] = std::pow(1 + 0.05 / 12, -static_cast<double>(t));
 
   const Assumptions sets[] = {
-      {.prepay = by_age(CurveShape::psa, 1.5),
-       .default_rate = by_age(CurveShape::sda, 2.0),
-       .severity = constant(0.45),
+      {.prepay = standard_curve(CurveShape::psa, 1.5),
+       .default_rate = standard_curve(CurveShape::sda, 2.0),
+       .severity = constant_curve(0.45),
        .lag_months = 12,
        .advancing = Advancing::interest,
        .delinquent_default = true},
-      {.prepay = ramp(0.02, 0.15, 24),
-       .default_rate = constant(0.01),
+      {.prepay = ramp_curve(0.02, 0.15, 24),
+       .default_rate = constant_curve(0.01),
        .severity = vector_curve({0.3, 0.4, 0.5}),
        .lag_months = 0},
-      {.prepay = constant(0.0), .default_rate = constant(0.0)},
+      {.prepay = constant_curve(0.0), .default_rate = constant_curve(0.0)},
   };
   for (std::size_t s = 0; s < std::size(sets); ++s) {
     for (bool with_paths : {false, true}) {
@@ -98,8 +98,8 @@ TEST(Threads, SameBitsForAnyThreadCount) {
 // Pool sums only (no per-loan totals) take the same path for every thread count as well.
 TEST(Threads, PoolOnlySameBits) {
   const LoanArrays loans = make_loans(random_test_loans(20'000, 99));
-  const Assumptions a{.prepay = constant(0.1),
-                      .default_rate = constant(0.03),
+  const Assumptions a{.prepay = constant_curve(0.1),
+                      .default_rate = constant_curve(0.03),
                       .lag_months = 6,
                       .advancing = Advancing::interest};
   ProjectionOptions o;

@@ -1,5 +1,6 @@
 // Tests for the JSON assumptions file (curves/assumptions_file.cpp): the full format, objects with
-// monthly values, partial overrides of a base, and every class of error with its place.
+// monthly values, partial overrides of a base, and every class of error with its place (duplicate
+// keys included).
 #include "curves/curves.h"
 
 #include <gtest/gtest.h>
@@ -149,6 +150,47 @@ TEST(AssumptionsFile, ErrorsNameTheKey) {
   }
 }
 
+TEST(AssumptionsFile, DuplicateKeysAreAnError) {
+  // Each key given twice, at the top level or inside a curve object, is refused by its path,
+  // whatever the two values are (the same value twice too).
+  const BadFile cases[] = {
+      {R"({"prepay": "psa:150", "prepay": "psa:200"})", "prepay",
+       "a.json key prepay: duplicate key; each key may appear only once"},
+      {R"({"lag_months": 6, "severity": 40, "lag_months": 6})", "lag_months", "duplicate key"},
+      {R"({"delinquent_default": true, "delinquent_default": false})", "delinquent_default",
+       "duplicate key"},
+      {R"({"prepay": {"cpr": [4, 5], "cpr": [6]}})", "prepay.cpr",
+       "a.json key prepay.cpr: duplicate key"},
+      {R"({"default": {"sda": 100, "clock": "loan_age", "clock": "loan_age"}})", "default.clock",
+       "duplicate key"},
+      {R"({"severity": {"severity": 40, "severity": 45}, "lag_months": 3})", "severity.severity",
+       "duplicate key"},
+      // Found before the unknown key the same object holds.
+      {R"({"prepay": {"psa": 100, "psa": 150}, "speed": 1})", "prepay.psa", "duplicate key"},
+      // Deeper than the format reads: still named by its path.
+      {R"({"x": [1, {"a": 1}, {"a": 1, "a": 2}]})", "x[2].a", "a.json key x[2].a: duplicate key"},
+  };
+  for (const BadFile& c : cases) {
+    SCOPED_TRACE(c.json);
+    try {
+      parse(c.json);
+      ADD_FAILURE() << "accepted";
+    } catch (const AssumptionError& e) {
+      EXPECT_EQ(e.source, "a.json");
+      EXPECT_EQ(e.key, c.key);
+      EXPECT_EQ(e.value, "");
+      EXPECT_NE(std::string_view(e.what()).find(c.fragment), std::string_view::npos) << e.what();
+    }
+  }
+
+  // One key in each of two objects, or once in each of sibling curve objects, is no duplicate.
+  const Assumptions a = parse(R"({"prepay": {"cpr": 4, "clock": "loan_age"},
+    "default": {"cdr": 1, "clock": "loan_age"}, "severity": {"severity": 40}})");
+  EXPECT_TRUE(same_curve(a.prepay, parse_prepay("cpr:4@age")));
+  EXPECT_TRUE(same_curve(a.default_rate, parse_default("cdr:1@age")));
+  EXPECT_TRUE(same_curve(a.severity, parse_severity("40")));
+}
+
 TEST(AssumptionsFile, SyntaxErrorsNameTheFileAndByte) {
   try {
     parse(R"({"prepay": "psa:150",})");
@@ -221,6 +263,17 @@ TEST_F(AssumptionsFileOnDisk, ErrorsNameThePath) {
   } catch (const AssumptionError& e) {
     EXPECT_EQ(std::string(e.what()).rfind(bad + " key lag, value '3': unknown key", 0), 0u)
         << e.what();
+  }
+  const std::string twice = (dir_ / "twice.json").string();
+  std::ofstream(twice) << "{\"severity\": 45,\n \"severity\": 50}";
+  try {
+    load_assumptions(twice);
+    FAIL() << "accepted";
+  } catch (const AssumptionError& e) {
+    EXPECT_EQ(e.source, twice);
+    EXPECT_EQ(e.key, "severity");
+    EXPECT_EQ(std::string(e.what()),
+              twice + " key severity: duplicate key; each key may appear only once");
   }
 }
 

@@ -622,6 +622,20 @@ Cells arm_row(std::initializer_list<std::pair<const std::string, std::string>> c
   return row;
 }
 
+TEST(Rejects, BalloonOrInterestOnlyTermsOnAnotherTypeAreProjectedAndSaidSo) {
+  // A balloon month on any loan must still fall after the age and within the term.
+  expect_reject(read_second_row({{"amortization_type", "fixed"}, {"balloon_month", "12"}}), 3,
+                "balloon_month", "12", "after the loan age (12)");
+  expect_warning(read_second_row({{"amortization_type", "fixed"}, {"balloon_month", "84"}}), 3,
+                 "balloon_month", "84", "projected as a balloon");
+  expect_warning(read_second_row({{"amortization_type", "fixed"}, {"io_months", "60"}}), 3,
+                 "io_months", "60", "projected as interest-only");
+  // An interest-only ARM is an ordinary loan: no warning.
+  const TapeRead arm = read_second_row(arm_row({{"io_months", "60"}}));
+  EXPECT_EQ(arm.rows_rejected, 0u);
+  EXPECT_EQ(arm.rows_with_warnings, 0u);
+}
+
 TEST(Rejects, ArmTermsOutOfRange) {
   struct Case {
     std::string column, value, reason;
