@@ -24,7 +24,10 @@ using nlohmann::json;
 
 double total(const std::vector<double>& v) { return std::accumulate(v.begin(), v.end(), 0.0); }
 
-json engine_json(const PoolFlows& p) {
+// Pool totals and the monthly cash flow of a pool table: the engine's PoolFlows and the tight
+// loop's TightPool name their columns alike.
+template <class Pool>
+json pool_json(const Pool& p, const std::vector<double>& cash_by_month) {
   return {{"months", p.months},
           {"begin_balance", total(p.begin_balance)},
           {"defaults", total(p.defaults)},
@@ -37,9 +40,11 @@ json engine_json(const PoolFlows& p) {
           {"loss", total(p.loss)},
           {"recovery", total(p.recovery)},
           {"end_balance", total(p.end_balance)},
-          {"cash_flow", total(p.cash_flow)},
-          {"cash_flow_by_month", p.cash_flow}};
+          {"cash_flow", total(cash_by_month)},
+          {"cash_flow_by_month", cash_by_month}};
 }
+
+json engine_json(const PoolFlows& p) { return pool_json(p, p.cash_flow); }
 
 json loan_totals_json(const LoanFlows& l) {
   return {{"defaults", total(l.defaults)},
@@ -58,20 +63,7 @@ json tight_json(const TightPool& p) {
   std::vector<double> cash(p.months);
   for (int m = 0; m < p.months; ++m)
     cash[m] = p.net_interest[m] + p.sched_principal[m] + p.prepayment[m] + p.recovery[m];
-  return {{"months", p.months},
-          {"begin_balance", total(p.begin_balance)},
-          {"defaults", total(p.defaults)},
-          {"sched_principal", total(p.sched_principal)},
-          {"prepayment", total(p.prepayment)},
-          {"gross_interest", total(p.gross_interest)},
-          {"servicing", total(p.servicing)},
-          {"net_interest", total(p.net_interest)},
-          {"advanced_interest", total(p.advanced_interest)},
-          {"loss", total(p.loss)},
-          {"recovery", total(p.recovery)},
-          {"end_balance", total(p.end_balance)},
-          {"cash_flow", total(cash)},
-          {"cash_flow_by_month", cash}};
+  return pool_json(p, cash);
 }
 
 std::uint64_t number(std::string_view option, const char* text) {

@@ -17,6 +17,7 @@
 #include <utility>
 #include <vector>
 
+#include "tests/support/csv_text.h"
 #include "tests/support/run_poolbid.h"
 
 namespace {
@@ -344,16 +345,8 @@ const std::string kLoansHeader =
     "loan_id,row,seller,cutoff_balance,sched_principal,prepayment,default,loss,recovery,"
     "gross_interest,servicing,net_interest,advanced_interest,cash_flow,wal_years,last_month";
 
-std::vector<std::string> lines_of(const std::string& text) {
-  std::vector<std::string> lines;
-  std::istringstream in(text);
-  for (std::string line; std::getline(in, line);) lines.push_back(line);
-  return lines;
-}
-
-std::size_t cells_in(const std::string& line) {
-  return static_cast<std::size_t>(std::count(line.begin(), line.end(), ',')) + 1;
-}
+using poolbid::testing_support::cells_in;
+using poolbid::testing_support::lines_of;
 
 // Every file in `folder`, by name.
 std::set<std::string> names_in(const fs::path& folder) {

@@ -15,6 +15,7 @@
 #include "report/format.h"
 #include "report/report.h"
 #include "tape/tape.h"
+#include "tests/support/csv_text.h"
 #include "tests/support/loans.h"
 
 namespace poolbid {
@@ -68,16 +69,8 @@ PoolFlows two_month_pool() {
   return p;
 }
 
-std::vector<std::string> lines_of(const std::string& text) {
-  std::vector<std::string> lines;
-  std::istringstream in(text);
-  for (std::string line; std::getline(in, line);) lines.push_back(line);
-  return lines;
-}
-
-std::size_t cells_in(const std::string& line) {
-  return static_cast<std::size_t>(std::count(line.begin(), line.end(), ',')) + 1;
-}
+using testing_support::cells_in;
+using testing_support::lines_of;
 
 bool contains(const std::string& text, const std::string& part) {
   return text.find(part) != std::string::npos;
