@@ -7,6 +7,8 @@
 
 #include <filesystem>
 #include <fstream>
+#include <optional>
+#include <string_view>
 
 #include <unistd.h>
 
@@ -94,6 +96,23 @@ struct BadFile {
   std::string_view fragment;  // must appear in what()
 };
 
+// `c.json` is refused with an AssumptionError from "a.json" naming `c.key` and saying `c.fragment`;
+// `value`, when given, is the error's value.
+void expect_refused(const BadFile& c, std::optional<std::string_view> value = std::nullopt) {
+  SCOPED_TRACE(c.json);
+  try {
+    parse(c.json);
+    ADD_FAILURE() << "accepted";
+  } catch (const AssumptionError& e) {
+    EXPECT_EQ(e.source, "a.json");
+    EXPECT_EQ(e.key, c.key);
+    if (value) {
+      EXPECT_EQ(e.value, *value);
+    }
+    EXPECT_NE(std::string_view(e.what()).find(c.fragment), std::string_view::npos) << e.what();
+  }
+}
+
 TEST(AssumptionsFile, ErrorsNameTheKey) {
   const BadFile cases[] = {
       {R"({"prepay_speed": "psa:150"})", "prepay_speed",
@@ -137,17 +156,7 @@ TEST(AssumptionsFile, ErrorsNameTheKey) {
       {R"({"severity": {"sda": 100}})", "severity.sda",
        "unknown key; a curve object takes severity and clock"},
   };
-  for (const BadFile& c : cases) {
-    SCOPED_TRACE(c.json);
-    try {
-      parse(c.json);
-      ADD_FAILURE() << "accepted";
-    } catch (const AssumptionError& e) {
-      EXPECT_EQ(e.source, "a.json");
-      EXPECT_EQ(e.key, c.key);
-      EXPECT_NE(std::string_view(e.what()).find(c.fragment), std::string_view::npos) << e.what();
-    }
-  }
+  for (const BadFile& c : cases) expect_refused(c);
 }
 
 TEST(AssumptionsFile, DuplicateKeysAreAnError) {
@@ -170,18 +179,7 @@ TEST(AssumptionsFile, DuplicateKeysAreAnError) {
       // Deeper than the format reads: still named by its path.
       {R"({"x": [1, {"a": 1}, {"a": 1, "a": 2}]})", "x[2].a", "a.json key x[2].a: duplicate key"},
   };
-  for (const BadFile& c : cases) {
-    SCOPED_TRACE(c.json);
-    try {
-      parse(c.json);
-      ADD_FAILURE() << "accepted";
-    } catch (const AssumptionError& e) {
-      EXPECT_EQ(e.source, "a.json");
-      EXPECT_EQ(e.key, c.key);
-      EXPECT_EQ(e.value, "");
-      EXPECT_NE(std::string_view(e.what()).find(c.fragment), std::string_view::npos) << e.what();
-    }
-  }
+  for (const BadFile& c : cases) expect_refused(c, "");
 
   // One key in each of two objects, or once in each of sibling curve objects, is no duplicate.
   const Assumptions a = parse(R"({"prepay": {"cpr": 4, "clock": "loan_age"},
