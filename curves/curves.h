@@ -1,18 +1,28 @@
-// Assumption curves: prepayment (CPR), default (CDR) and loss severity as functions of loan age or
-// projection month -- constant, month-by-month vector, linear ramp, PSA, SDA -- with the compact
-// text form the command line uses and the JSON assumptions file. Rates are decimals per year.
-// Everything here is a plain value; the functions are pure and safe to call from any thread.
+// Curves: assumption curves for prepayment (CPR), default (CDR) and loss severity as functions of
+// loan age or projection month -- constant, vector, ramp, PSA, SDA -- with their command-line text
+// and JSON file; and the yield curve (bootstrapped by QuantLib from market quotes, or flat), its
+// shifts, forwards for ARM indexes and the market mortgage rate, and the payment-date rule.
+// Rates are decimals per year. Everything here is a plain value; the functions are pure and safe
+// to call from any thread.
 #pragma once
 
+#include <chrono>
 #include <cstdint>
+#include <memory>
+#include <span>
 #include <stdexcept>
 #include <string>
 #include <string_view>
 #include <utility>
 #include <vector>
 
+namespace QuantLib {
+class YieldTermStructure;
+}
+
 namespace poolbid {
 
+using Date = std::chrono::year_month_day;  // as in tape/tape.h
 using Rate = double;  // decimal per year: 0.065
 
 // ---- Standard curves and rate conversions (DESIGN.md sections 2 and 3) --------------------------
@@ -162,6 +172,111 @@ Assumptions parse_assumptions(std::string_view json_text, std::string_view sourc
 struct AssumptionError : std::runtime_error {
   AssumptionError(std::string source, std::string key, std::string value,
                   const std::string& message);
+  std::string source, key, value;
+};
+
+// ---- Payment dates (DESIGN.md section 5) --------------------------------------------------------
+// Collection month t runs from cutoff + (t - 1) months; its cash reaches the investor on the first
+// day of month t + 1 plus `delay_days`. Month 1 of a 2026-12-01 cut-off, delay 17: 2027-01-18.
+Date payment_date(Date cutoff, int month, int delay_days);
+// The first day of collection month t: cutoff + (t - 1) months (the day of month kept).
+Date collection_start(Date cutoff, int month);
+
+// ---- Yield curves (DESIGN.md section 5) ---------------------------------------------------------
+// Curve file (JSON, our format, documented in the README):
+//   {"as_of": "2026-12-01",
+//    "quotes": [{"kind": "deposit", "tenor": "1M", "rate": 4.31},
+//               {"kind": "swap", "tenor": "2Y", "rate": 3.92}, ...],
+//    "indexes": {"SOFR30A": {"tenor": "1M", "spread": 0}},
+//    "mortgage_spread": 1.45,
+//    "description": "..."}
+// Rates in percent. Kinds: "deposit" (simple, Actual/360, from as_of), "swap" (fixed annual
+// Actual/360 against a compounded overnight rate, from as_of), "par_yield" (a semiannual 30/360
+// bond priced at par, from as_of). One curve may mix kinds; two quotes may not share a maturity.
+// "indexes" names the ARM indexes the curve can project: each reads the simple Actual/360 forward
+// rate over its tenor, plus its spread (percent). "mortgage_spread" (percent) is the
+// primary-secondary spread over the forward 10-year par rate for the market mortgage rate.
+struct CurveQuote {
+  enum class Kind : std::uint8_t { deposit, swap, par_yield };
+  Kind kind = Kind::deposit;
+  std::string tenor;   // as written: "1M", "2Y"
+  int months = 0;      // the tenor in months
+  Rate rate = 0;       // decimal
+};
+struct CurveIndex {
+  std::string name;      // as a tape names it: "SOFR30A"
+  int tenor_months = 1;  // term of the forward rate
+  Rate spread = 0;       // added to the forward, decimal
+};
+
+struct YieldCurve {
+  std::string source;                // the file, or "flat 4.5%", for messages and reports
+  std::string description;
+  Date as_of{};                      // reference date: discount factor 1
+  std::vector<CurveQuote> quotes;    // empty for a flat curve
+  Rate flat_rate = 0;                // flat curves: continuous zero rate, Actual/365 Fixed
+  bool flat = false;
+  // ARM indexes the curve projects. A flat curve projects any index name (1-month forward).
+  std::vector<CurveIndex> indexes;
+  Rate mortgage_spread = 0.0145;     // decimal; illustrative default, see the README
+  double parallel_shift_bp = 0;      // shifts applied so far (for reports)
+  std::vector<std::pair<double, double>> key_rate_shifts;  // (years, bp) applied so far
+  // The QuantLib curve: discount factors, zero rates, forwards. Extrapolates past the last quote
+  // (flat forward). Never null in a curve built by the functions below.
+  std::shared_ptr<const QuantLib::YieldTermStructure> term_structure;
+};
+
+// Throws CurveError naming the file, the key (e.g. "quotes[3].tenor") and the value at fault:
+// unreadable file, bad JSON, unknown or duplicate key, bad date, tenor or rate, duplicate
+// maturity, or a bootstrap QuantLib cannot complete.
+YieldCurve load_yield_curve(const std::string& path);
+YieldCurve parse_yield_curve(std::string_view json_text, std::string_view source_name);
+// Flat continuous zero rate (decimal), Actual/365 Fixed, from `as_of`.
+YieldCurve flat_yield_curve(Rate continuous_rate, Date as_of);
+
+// The curve with its continuous zero rates moved: `parallel_bp` everywhere, plus key-rate bumps
+// (tenor in years, bp), each a triangle that is full at its tenor and falls to zero at the
+// neighbouring key tenors (flat before the first and after the last). Quotes are not re-bootstrapped.
+struct CurveShift {
+  double parallel_bp = 0;
+  std::vector<double> key_years;  // ascending, > 0
+  std::vector<double> key_bp;     // one per key tenor
+};
+YieldCurve shift_curve(const YieldCurve& curve, const CurveShift& shift);
+inline YieldCurve shift_curve(const YieldCurve& curve, double parallel_bp) {
+  return shift_curve(curve, CurveShift{parallel_bp, {}, {}});
+}
+
+// Sampling. Dates before as_of are an error (std::invalid_argument).
+double discount_factor(const YieldCurve& curve, Date date);
+std::vector<double> discount_factors(const YieldCurve& curve, std::span<const Date> dates);
+double curve_time(const YieldCurve& curve, Date date);   // Actual/365 Fixed years from as_of
+Rate zero_rate(const YieldCurve& curve, Date date);      // continuous, Actual/365 Fixed
+// Simple Actual/360 forward rate from `start` over `months` months.
+Rate forward_rate(const YieldCurve& curve, Date start, int months);
+// Par yield (semiannual coupon, 30/360, priced at par from as_of) for a maturity of `years`
+// (> 0; fractional maturities interpolate linearly between half-year grid points; a maturity
+// under half a year reads the half-year point).
+Rate par_yield(const YieldCurve& curve, double years);
+
+// ARM index rates by projection month for the indexes a tape names: rates[k][t - 1] is index
+// names[k]'s forward rate (plus spread) over its tenor starting collection_start(cutoff, t).
+// Throws CurveError if the curve does not define a name (a flat curve defines every name).
+struct IndexPaths {
+  int months = 0;
+  std::vector<std::string> names;
+  std::vector<std::vector<Rate>> rates;
+};
+IndexPaths index_paths(const YieldCurve& curve, std::span<const std::string> names, Date cutoff,
+                       int months);
+// The market mortgage rate by projection month: the forward 10-year par yield starting
+// collection_start(cutoff, t), plus the curve's mortgage_spread. [t - 1] = month t.
+std::vector<Rate> mortgage_rate_path(const YieldCurve& curve, Date cutoff, int months);
+
+// A bad curve file or curve option: `source` the file or option, `key` the JSON key ("" for an
+// option), `value` the text at fault.
+struct CurveError : std::runtime_error {
+  CurveError(std::string source, std::string key, std::string value, const std::string& message);
   std::string source, key, value;
 };
 

@@ -181,7 +181,7 @@ std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days) 
       {"payment delay",
        fmt::format("{} (month 1 paid {})", detail::count_of(static_cast<std::size_t>(delay_days),
                                                              "day", "days"),
-                   detail::iso_date(detail::payment_date(cutoff, 1, delay_days)))},
+                   detail::iso_date(payment_date(cutoff, 1, delay_days)))},
   };
   return detail::render(table);
 }
@@ -204,7 +204,7 @@ std::string summary_text(const TapeRead& tape, const PoolFlows& pool, const Assu
       {"months", count_text(static_cast<std::size_t>(std::max(pool.months, 0))),
        pool.months > 0
            ? fmt::format("(last month paid {})",
-                         detail::iso_date(detail::payment_date(cutoff, pool.months, delay_days)))
+                         detail::iso_date(payment_date(cutoff, pool.months, delay_days)))
            : std::string()});
   money("scheduled principal", t.sched_principal);
   money("prepayment", t.prepayment, percent_of_upb(t.prepayment, pool.cutoff_balance));
@@ -244,7 +244,7 @@ std::string months_text(const PoolFlows& p, Date cutoff, int delay_days) {
     const auto i = static_cast<std::size_t>(t - 1);
     table.rows.push_back({
         std::to_string(t),
-        detail::iso_date(detail::payment_date(cutoff, t, delay_days)),
+        detail::iso_date(payment_date(cutoff, t, delay_days)),
         whole(p.begin_balance[i]),
         whole(p.sched_principal[i]),
         whole(p.prepayment[i]),
@@ -279,7 +279,7 @@ Json month_json(const PoolFlows& p, int t, Date cutoff, int delay_days) {
   using detail::number_or_null;
   return Json{
       {"month", t},
-      {"date", detail::iso_date(detail::payment_date(cutoff, t, delay_days))},
+      {"date", detail::iso_date(payment_date(cutoff, t, delay_days))},
       {"begin_balance", number_or_null(p.begin_balance[i])},
       {"sched_principal", number_or_null(p.sched_principal[i])},
       {"prepayment", number_or_null(p.prepayment[i])},
@@ -354,7 +354,7 @@ std::string cashflow_csv(const PoolFlows& p, Date cutoff, int delay_days) {
   for (int t = 1; t <= p.months; ++t) {
     const auto i = static_cast<std::size_t>(t - 1);
     fmt::format_to(std::back_inserter(out), "{},{}", t,
-                   detail::iso_date(detail::payment_date(cutoff, t, delay_days)));
+                   detail::iso_date(payment_date(cutoff, t, delay_days)));
     for (double x : {p.begin_balance[i], p.sched_principal[i], p.prepayment[i], p.defaults[i],
                      p.loss[i], p.recovery[i], p.gross_interest[i], p.servicing[i],
                      p.net_interest[i], p.total_principal[i], p.cash_flow[i], p.end_balance[i]}) {
@@ -455,8 +455,7 @@ std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
       {"cutoff_balance", number_or_null(pool.cutoff_balance)},
       {"months", std::max(pool.months, 0)},
       {"last_payment_date",
-       pool.months > 0 ? Json(detail::iso_date(detail::payment_date(cutoff, pool.months,
-                                                                    delay_days)))
+       pool.months > 0 ? Json(detail::iso_date(payment_date(cutoff, pool.months, delay_days)))
                        : Json(nullptr)},
       {"sched_principal", number_or_null(t.sched_principal)},
       {"prepayment", number_or_null(t.prepayment)},

@@ -86,13 +86,6 @@ std::string iso_date(const Date& date) {
                      static_cast<unsigned>(date.month()), static_cast<unsigned>(date.day()));
 }
 
-Date payment_date(const Date& cutoff, int month, int delay_days) {
-  const std::chrono::year_month collection_end =
-      std::chrono::year_month{cutoff.year(), cutoff.month()} + std::chrono::months{month};
-  return Date{std::chrono::sys_days{collection_end / std::chrono::day{1}} +
-              std::chrono::days{delay_days}};
-}
-
 std::string count_text(std::size_t n) { return with_thousands(static_cast<double>(n), 0); }
 
 std::string cutoff_text(const std::optional<Date>& cutoff) {

@@ -23,9 +23,6 @@ std::string dollars(double x);
 std::string fixed_or_dash(double x, int decimals);
 // "2026-12-01".
 std::string iso_date(const Date& date);
-// The day the cash of collection month `month` (1 = the month starting at the cut-off) reaches the
-// investor: the first day of the month after it, plus `delay_days` (DESIGN.md section 5).
-Date payment_date(const Date& cutoff, int month, int delay_days);
 // 1234567 -> "1,234,567".
 std::string count_text(std::size_t n);
 // "2026-12-01", or "not given".

@@ -27,10 +27,6 @@ using testing_support::make_loans;
 
 constexpr Date kCutoff{std::chrono::year{2026}, std::chrono::month{12}, std::chrono::day{1}};
 
-Date ymd(int y, unsigned m, unsigned d) {
-  return Date{std::chrono::year{y}, std::chrono::month{m}, std::chrono::day{d}};
-}
-
 // A pool of `months` months, every column filled with `fill`.
 PoolFlows flat_pool(int months, double fill = 0) {
   PoolFlows p;
@@ -104,18 +100,13 @@ TEST(CashflowCsv, HandMadePoolFormatsExactly) {
   EXPECT_FALSE(contains(csv, "\""));
 }
 
-TEST(CashflowCsv, PaymentDateIsFirstOfNextMonthPlusDelay) {
-  // DESIGN.md section 5: collection month t starts at cut-off + (t - 1) months; its cash is paid
-  // on the first of the following month plus the delay.
-  EXPECT_EQ(detail::payment_date(kCutoff, 1, 17), ymd(2027, 1, 18));
-  EXPECT_EQ(detail::payment_date(kCutoff, 1, 0), ymd(2027, 1, 1));
-  EXPECT_EQ(detail::payment_date(kCutoff, 12, 17), ymd(2027, 12, 18));
-  EXPECT_EQ(detail::payment_date(kCutoff, 360, 17), ymd(2056, 12, 18));
-  // A delay past the month's end runs into the next: 2028-02-01 + 30 days, 2028 a leap year.
-  EXPECT_EQ(detail::payment_date(ymd(2027, 12, 1), 2, 30), ymd(2028, 3, 2));
-  EXPECT_EQ(detail::payment_date(ymd(2026, 12, 1), 2, 30), ymd(2027, 3, 3));
+TEST(CashflowCsv, DateColumnIsThePaymentDate) {
+  // The rule itself is tested in tests/curves/payment_dates_test.cpp.
   const std::vector<std::string> lines = lines_of(cashflow_csv(flat_pool(14), kCutoff, 0));
   EXPECT_EQ(lines[14].substr(0, 14), "14,2028-02-01,");
+  EXPECT_EQ(lines[14].substr(3, 10), detail::iso_date(payment_date(kCutoff, 14, 0)));
+  const std::vector<std::string> delayed = lines_of(cashflow_csv(flat_pool(14), kCutoff, 17));
+  EXPECT_EQ(delayed[1].substr(0, 13), "1,2027-01-18,");
 }
 
 // ---- Loans CSV ----------------------------------------------------------------------------------
