@@ -13,13 +13,40 @@
 
 namespace poolbid {
 
-// Note rates for loans whose coupon changes (ARMs), by projection month. A loan not listed keeps
-// its note rate. The level payment re-amortises whenever a listed loan's rate changes.
-struct CouponPaths {
-  int months = 0;                     // projection months given; later months keep the last rate
-  std::vector<std::uint32_t> loans;   // loan indexes into LoanArrays, strictly ascending
-  std::vector<Rate> rates;            // rates[k * months + (t - 1)]: k-th listed loan, month t
+// A listed loan's note rate from projection month `month` on (until its next change).
+struct CouponChange {
+  std::int32_t month = 1;  // projection month, >= 1
+  Rate rate = 0;           // decimal per year, >= the loan's servicing fee
 };
+
+// Note rates for loans whose coupon changes (ARMs), as changes. A loan not listed keeps its note
+// rate; a listed loan keeps its note rate until its first change. The level payment re-amortises
+// whenever a change moves the rate.
+struct CouponPaths {
+  std::vector<std::uint32_t> loans;    // loan indexes into LoanArrays, strictly ascending
+  std::vector<std::uint32_t> begin;    // loans[k]'s changes are changes[begin[k] .. begin[k + 1]);
+                                       // loans.size() + 1 entries (or empty when no loans)
+  std::vector<CouponChange> changes;   // months strictly ascending within each loan
+};
+
+// Month-by-month rates (rates[k * months + t - 1] for loans[k], month t; later months keep the
+// last) as changes: month 1, then every month whose rate differs from the month before.
+// Throws std::invalid_argument unless months >= 1 and rates.size() == loans.size() x months.
+CouponPaths coupon_changes(std::vector<std::uint32_t> loans, int months,
+                           std::span<const Rate> rates);
+
+// Coupon paths for every ARM on the tape (amortization == arm), from projected index rates:
+// at each reset -- loan month arm_first_reset, then every arm_reset_period months, counted from
+// the first payment, so projection month t is loan month age + t -- the rate becomes index +
+// margin (the index read in that collection month), moved at most arm_periodic_cap from the
+// previous rate (no limit if not given), then held within [floor, lifetime cap]. A floor not given
+// is the margin (common practice); a lifetime cap not given is no cap. Between resets the rate
+// holds, and never falls below the loan's servicing fee. Resets run through month `index.months`
+// (the rate then holds). Rates are not rounded. Every ARM is listed; its changes are the resets
+// that move its rate, plus a month-1 change only when the servicing fee lifts the note rate (no
+// month-1 entry at the note rate). Throws std::invalid_argument naming the loan and the index if
+// an ARM's index is not in `index.names`.
+CouponPaths arm_coupon_paths(const LoanArrays& loans, const IndexPaths& index);
 
 struct ProjectionOptions {
   // Worker threads; 0 = every core. Results do not depend on it.

@@ -3,6 +3,7 @@
 // no division per loan-month: the level payment is carried forward and scaled by what survives.
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <memory>
 
 #include "cashflow/engine.h"
@@ -46,9 +47,14 @@ struct Block {
   alignas(64) double last_cash[kBlockLoans];
 };
 
-// A rate-changing loan in the block: its slot, its row in CouponPaths and its current note rate.
+// Month of a coupon change that never comes: past any loan's last month.
+constexpr int kNoChange = std::numeric_limits<int>::max();
+
+// A rate-changing loan in the block: its slot, its changes still to come (changes[next .. end)),
+// the month of the next one (kNoChange once none is left) and its current note rate.
 struct CouponSlot {
-  std::size_t slot, path_row;
+  std::size_t slot, next, end;
+  int month;
   double annual_rate;
 };
 
@@ -86,27 +92,37 @@ void load_block(const EngineInputs& in, std::size_t first, std::size_t count, Bl
   }
 }
 
-// Rate-changing loans of the block, in slot order.
+// Rate-changing loans of the block with any change, in slot order.
 std::vector<CouponSlot> coupon_slots(const EngineInputs& in, const Block& b) {
   std::vector<CouponSlot> slots;
   if (!in.coupons) return slots;
-  const auto& listed = in.coupons->loans;
+  const CouponPaths& paths = *in.coupons;
+  const auto& listed = paths.loans;
   auto it = std::lower_bound(listed.begin(), listed.end(), b.first);
   for (; it != listed.end() && *it < b.first + b.count; ++it) {
-    const std::size_t slot = *it - b.first;
-    const auto path_row = static_cast<std::size_t>(it - listed.begin());
-    slots.push_back({slot, path_row, in.loans->note_rate[*it]});
+    const auto k = static_cast<std::size_t>(it - listed.begin());
+    const std::size_t next = paths.begin[k], end = paths.begin[k + 1];
+    if (next == end) continue;
+    slots.push_back({*it - b.first, next, end, paths.changes[next].month,
+                     in.loans->note_rate[*it]});
   }
   return slots;
 }
 
-// Before month t: a loan whose coupon changes takes the new rate and its payment re-amortises the
-// beginning balance over the months left (or, while interest-only, the payment it will start with).
-void apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, int t) {
-  const CouponPaths& paths = *in.coupons;
-  const int column = std::min(t, paths.months) - 1;
+// Before month t: a loan whose coupon changes in month t takes the new rate and, if that moves its
+// rate, its payment re-amortises the beginning balance over the months left (or, while
+// interest-only, the payment it will start with). Returns the month of the block's next change.
+int apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, int t) {
+  const std::vector<CouponChange>& changes = in.coupons->changes;
+  int due = kNoChange;
   for (CouponSlot& c : slots) {
-    const double annual = paths.rates[c.path_row * paths.months + column];
+    if (c.month != t) {
+      due = std::min(due, c.month);
+      continue;
+    }
+    const double annual = changes[c.next++].rate;
+    c.month = c.next < c.end ? changes[c.next].month : kNoChange;
+    due = std::min(due, c.month);
     if (annual == c.annual_rate) continue;
     c.annual_rate = annual;
     const std::size_t i = c.slot;
@@ -120,6 +136,7 @@ void apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSl
       b.payment[i] = b.balance[i] * annuity_factor(b.rate[i], remaining - t + 1);
     }
   }
+  return due;
 }
 
 // One month of the loop for one block. Template flags: which curves need a per-loan table lookup
@@ -271,8 +288,9 @@ void run_block(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots,
   auto per_loan = [youngest](const MonthlyTable& table, int t) {
     return table.clock == CurveClock::loan_age && youngest + t < table.hold;
   };
+  int due = slots.empty() ? kNoChange : 1;  // month of the next coupon change
   for (int t = 1; t <= b.months; ++t) {
-    if (!slots.empty()) apply_coupon_changes(in, b, slots, t);
+    if (t >= due) due = apply_coupon_changes(in, b, slots, t);
     const int key = (per_loan(in.smm, t) ? 4 : 0) + (per_loan(in.mdr, t) ? 2 : 0) +
                     (per_loan(in.severity, t) ? 1 : 0);
     kMonthSteps<kTotals>[key](in, b, t, sums);

@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <atomic>
 #include <cmath>
+#include <cstdint>
 #include <exception>
 #include <mutex>
 #include <stdexcept>
@@ -42,23 +43,58 @@ void check_loans(const LoanArrays& l) {
   }
 }
 
-// Coupon paths list loans once, ascending, with a finite rate for every month that is at least
-// the loan's servicing fee (as its note rate must be).
+// Coupon paths list loans once, ascending, each with a run of changes in `changes` (begin runs
+// from 0 to changes.size(), never decreasing); a loan's changes fall in months 1 on, strictly
+// ascending, at finite rates no lower than its servicing fee (as its note rate must be).
 void check_coupons(const CouponPaths& c, const LoanArrays& l) {
-  bool ok = c.months >= 1 && c.rates.size() == c.loans.size() * std::size_t(c.months) &&
-            std::is_sorted(c.loans.begin(), c.loans.end()) &&
-            std::adjacent_find(c.loans.begin(), c.loans.end()) == c.loans.end() &&
-            (c.loans.empty() || c.loans.back() < l.size());
-  for (std::size_t k = 0; ok && k < c.loans.size(); ++k) {
-    const double fee = l.servicing_fee[c.loans[k]];
-    const auto first = c.rates.begin() + std::ptrdiff_t(k * c.months);
-    ok = std::all_of(first, first + c.months,
-                     [fee](double r) { return std::isfinite(r) && r >= fee; });
+  auto bad = [](const std::string& what) {
+    throw std::invalid_argument("project_pool: coupon paths: " + what);
+  };
+  const std::size_t n = c.loans.size();
+  if (n == 0) {
+    if (!c.changes.empty() || c.begin.size() > 1 || (c.begin.size() == 1 && c.begin[0] != 0))
+      bad(fmt::format("no loans are listed, yet there are {} changes and {} begin entries",
+                      c.changes.size(), c.begin.size()));
+    return;
   }
-  if (!ok)
-    throw std::invalid_argument(
-        "project_pool: coupon paths must list loans once, ascending, with a finite rate for "
-        "every month, none below the loan's servicing fee");
+  if (c.begin.size() != n + 1)
+    bad(fmt::format("{} loans listed need {} begin entries, not {}", n, n + 1, c.begin.size()));
+  if (c.begin.front() != 0 || c.begin.back() != c.changes.size())
+    bad(fmt::format("begin must run from 0 to the number of changes ({}), not {} to {}",
+                    c.changes.size(), c.begin.front(), c.begin.back()));
+  for (std::size_t k = 0; k < n; ++k) {
+    const std::uint32_t i = c.loans[k];
+    if (i >= l.size())
+      bad(fmt::format("listed loan {} (entry {}) is past the last loan ({} loans)", i, k,
+                      l.size()));
+    if (k > 0 && i <= c.loans[k - 1])
+      bad(fmt::format("loans must be strictly ascending: entry {} is loan {} after loan {}", k, i,
+                      c.loans[k - 1]));
+    if (c.begin[k + 1] < c.begin[k])
+      bad(fmt::format("begin must not decrease: entry {} is {} after {}", k + 1, c.begin[k + 1],
+                      c.begin[k]));
+  }
+  for (std::size_t k = 0; k < n; ++k) {
+    const std::uint32_t i = c.loans[k];
+    const std::string loan =
+        fmt::format("loan '{}' (row {})", l.loan_id[i], i < l.row.size() ? l.row[i] : 0);
+    const double fee = l.servicing_fee[i];
+    std::int32_t previous = 0;
+    for (std::uint32_t j = c.begin[k]; j < c.begin[k + 1]; ++j) {
+      const CouponChange& change = c.changes[j];
+      if (change.month < 1)
+        bad(fmt::format("{}: change in month {} (months start at 1)", loan, change.month));
+      if (change.month <= previous)
+        bad(fmt::format("{}: change in month {} follows one in month {} (months must rise "
+                        "strictly)",
+                        loan, change.month, previous));
+      if (!std::isfinite(change.rate) || change.rate < fee)
+        bad(fmt::format("{}: rate {} in month {} must be a finite number no lower than the "
+                        "servicing fee {}",
+                        loan, change.rate, change.month, fee));
+      previous = change.month;
+    }
+  }
 }
 
 // Monthly rates and severities must be shares: finite, 0 to 1. (curves/ refuses anything else from

@@ -195,6 +195,8 @@ void check_credit(RowCheck& c) {
 void check_arm(RowCheck& c) {
   const LoanArrays& l = c.loans();
   const std::size_t i = c.i;
+  if (!c.has(Field::arm_index) || l.arm_index[i] == 0)
+    c.reject(Field::arm_index, "ARM without an index (its coupon follows the index)");
   if (!c.has(Field::arm_margin)) {
     c.reject(Field::arm_margin, "ARM without a margin");
   } else if (const double margin = l.arm_margin[i]; !(margin >= 0 && margin <= kMaxArmMargin)) {

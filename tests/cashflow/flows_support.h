@@ -1,5 +1,6 @@
 // Test support for cashflow/: random loan tapes, independent level-payment arithmetic, padding and
-// summing PoolFlows, and vector comparisons that report the first few mismatches, not thousands.
+// summing PoolFlows, vector comparisons that report the first few mismatches, not thousands,
+// bitwise comparisons of projections, and coupon changes written out month by month.
 #pragma once
 
 #include <gtest/gtest.h>
@@ -8,6 +9,7 @@
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
+#include <cstring>
 #include <random>
 #include <string>
 #include <vector>
@@ -190,6 +192,62 @@ struct FailureBudget {
 // Scalars the same way, for per-loan totals.
 inline bool near(double got, double want, double rel, double abs = 0) {
   return std::abs(got - want) <= rel * std::abs(want) + abs;
+}
+
+// Bitwise equality of two double vectors (== would also pass -0.0 against 0.0 and fail NaN).
+inline void expect_same_bits(const std::vector<double>& a, const std::vector<double>& b,
+                             const std::string& what) {
+  ASSERT_EQ(a.size(), b.size()) << what;
+  EXPECT_EQ(std::memcmp(a.data(), b.data(), a.size() * sizeof(double)), 0) << what;
+}
+
+// Bitwise equality of two projections: every pool vector and every per-loan total.
+inline void expect_same_projection(const Projection& a, const Projection& b) {
+  EXPECT_EQ(a.pool.months, b.pool.months);
+  EXPECT_EQ(std::memcmp(&a.pool.cutoff_balance, &b.pool.cutoff_balance, sizeof(double)), 0);
+  const auto ca = all_columns(a.pool), cb = all_columns(b.pool);
+  ASSERT_EQ(ca.size(), cb.size());
+  for (std::size_t k = 0; k < ca.size(); ++k)
+    expect_same_bits(*ca[k].second, *cb[k].second, std::string("pool ") + ca[k].first);
+  const std::pair<const char*, std::vector<double> LoanFlows::*> loan_columns[] = {
+      {"sched_principal", &LoanFlows::sched_principal},
+      {"prepayment", &LoanFlows::prepayment},
+      {"defaults", &LoanFlows::defaults},
+      {"loss", &LoanFlows::loss},
+      {"recovery", &LoanFlows::recovery},
+      {"gross_interest", &LoanFlows::gross_interest},
+      {"servicing", &LoanFlows::servicing},
+      {"net_interest", &LoanFlows::net_interest},
+      {"advanced_interest", &LoanFlows::advanced_interest},
+      {"cash_flow", &LoanFlows::cash_flow},
+      {"wal_years", &LoanFlows::wal_years},
+      {"present_value", &LoanFlows::present_value},
+  };
+  for (const auto& [name, member] : loan_columns)
+    expect_same_bits(a.loans.*member, b.loans.*member, std::string("loans ") + name);
+  EXPECT_EQ(a.loans.last_month, b.loans.last_month);
+}
+
+// The k-th listed loan's rate in months 1 .. months, written out from its changes: its note rate
+// until the first change, each change's rate from its month on.
+inline std::vector<double> coupon_path(const CouponPaths& c, std::size_t k,
+                                       const LoanArrays& loans, int months) {
+  std::vector<double> out(static_cast<std::size_t>(months), loans.note_rate[c.loans[k]]);
+  for (std::uint32_t j = c.begin[k]; j < c.begin[k + 1]; ++j)
+    for (int t = c.changes[j].month; t <= months; ++t)
+      out[static_cast<std::size_t>(t - 1)] = c.changes[j].rate;
+  return out;
+}
+
+// Every listed loan's path over `months`, one after another (coupon_changes' input).
+inline std::vector<double> coupon_rates(const CouponPaths& c, const LoanArrays& loans,
+                                        int months) {
+  std::vector<double> out;
+  for (std::size_t k = 0; k < c.loans.size(); ++k) {
+    const std::vector<double> path = coupon_path(c, k, loans, months);
+    out.insert(out.end(), path.begin(), path.end());
+  }
+  return out;
 }
 
 // ProjectionOptions with one worker thread (for many small projections).

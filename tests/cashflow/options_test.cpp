@@ -3,9 +3,12 @@
 // where the table ends, and bad options and inputs.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
-#include <string>
+#include <cstdint>
 #include <stdexcept>
+#include <string>
+#include <utility>
 #include <vector>
 
 #include "cashflow/cashflow.h"
@@ -317,10 +320,7 @@ void expect_identical(const PoolFlows& a, const PoolFlows& b) {
 
 TEST(CouponPaths, PathAtTheNoteRateChangesNothing) {
   const LoanArrays loans = two_loans();
-  CouponPaths paths;
-  paths.months = 48;
-  paths.loans = {1};
-  paths.rates.assign(48, 0.06);
+  const CouponPaths paths = coupon_changes({1}, 48, std::vector<double>(48, 0.06));
   const Assumptions a{.prepay = constant_curve(0.08),
                       .default_rate = constant_curve(0.01),
                       .lag_months = 6,
@@ -334,17 +334,15 @@ TEST(CouponPaths, PathAtTheNoteRateChangesNothing) {
 
 TEST(CouponPaths, StepUpReamortisesOverTheMonthsLeft) {
   const LoanArrays loans = two_loans();
-  CouponPaths paths;
-  paths.months = 24;
-  paths.loans = {1};
-  for (int t = 1; t <= 24; ++t) paths.rates.push_back(t <= 12 ? 0.06 : t < 24 ? 0.08 : 0.09);
+  std::vector<double> rates;
+  for (int t = 1; t <= 24; ++t) rates.push_back(t <= 12 ? 0.06 : t < 24 ? 0.08 : 0.09);
+  const CouponPaths paths = coupon_changes({1}, 24, rates);
   ProjectionOptions o;
   o.coupons = &paths;
   o.loan_totals = true;
   const Projection p = project_pool(loans, Assumptions{}, o);
   // The ARM alone (loan index 0 of its own tape), to read its rows.
-  CouponPaths alone = paths;
-  alone.loans = {0};
+  const CouponPaths alone = coupon_changes({0}, 24, rates);
   ProjectionOptions o_alone;
   o_alone.coupons = &alone;
   const PoolFlows f = project_pool(single_loan(loans, 1), Assumptions{}, o_alone).pool;
@@ -408,10 +406,7 @@ TEST(CouponPaths, PathAtANoteRateThatTwelfthsDoNotRoundTripChangesNothing) {
                                           .age = 10,
                                           .amortization = Amortization::balloon,
                                           .balloon_month = 84}});
-    CouponPaths paths;
-    paths.months = 48;
-    paths.loans = {0, 1, 2};
-    paths.rates.assign(3 * 48, rate);
+    const CouponPaths paths = coupon_changes({0, 1, 2}, 48, std::vector<double>(3 * 48, rate));
     const Assumptions a{.prepay = constant_curve(0.08),
                         .default_rate = constant_curve(0.01),
                         .lag_months = 6,
@@ -442,10 +437,9 @@ TEST(CouponPaths, StepDuringInterestOnlyPaysTheNewRateThenAmortisesAtIt) {
                                           .servicing = 0.00375,
                                           .amortization = Amortization::interest_only,
                                           .io_months = 120}});
-    CouponPaths paths;
-    paths.months = step;
-    paths.loans = {0};
-    for (int t = 1; t <= step; ++t) paths.rates.push_back(t < step ? 0.06 : 0.07);
+    std::vector<double> rates;
+    for (int t = 1; t <= step; ++t) rates.push_back(t < step ? 0.06 : 0.07);
+    const CouponPaths paths = coupon_changes({0}, step, rates);
     ProjectionOptions o;
     o.coupons = &paths;
     const PoolFlows f = project_pool(loans, Assumptions{}, o).pool;
@@ -485,10 +479,9 @@ TEST(CouponPaths, StepUpUnderPrepaymentAndDefaultMatchesASingleLoanAmortisation)
                                         .age = 60,
                                         .servicing = 0.00375,
                                         .amortization = Amortization::arm}});
-  CouponPaths paths;
-  paths.months = 13;  // month 13's 8% holds after the path ends
-  paths.loans = {0};
-  for (int t = 1; t <= 13; ++t) paths.rates.push_back(t < 13 ? 0.06 : 0.08);
+  std::vector<double> rates;
+  for (int t = 1; t <= 13; ++t) rates.push_back(t < 13 ? 0.06 : 0.08);
+  const CouponPaths paths = coupon_changes({0}, 13, rates);  // month 13's 8% holds after it
   const Assumptions a{.prepay = constant_curve(0.10),
                       .default_rate = constant_curve(0.02),
                       .severity = constant_curve(0.35),
@@ -549,18 +542,163 @@ TEST(CouponPaths, StepUpUnderPrepaymentAndDefaultMatchesASingleLoanAmortisation)
   EXPECT_NEAR(f.gross_interest[12], (begin[12] - defaults[12]) * 0.08 / 12, 1e-8);
 }
 
-TEST(CouponPaths, BadPathsAreAnError) {
+// Coupon paths from their three vectors, as written.
+CouponPaths listing(std::vector<std::uint32_t> loans, std::vector<std::uint32_t> begin,
+                    std::vector<CouponChange> changes) {
+  CouponPaths c;
+  c.loans = std::move(loans);
+  c.begin = std::move(begin);
+  c.changes = std::move(changes);
+  return c;
+}
+
+TEST(CouponPaths, BadPathsAreAnErrorThatSaysWhatIsWrong) {
+  const LoanArrays loans = two_loans();  // loan 1, 'A', has a 0.375% servicing fee
+  const double nan = std::nan("");
+  struct Case {
+    const char* what;
+    CouponPaths paths;
+    const char* message;  // part of what() the error must carry
+  };
+  const Case cases[] = {
+      {"changes with no loans", listing({}, {}, {{1, 0.06}}), "no loans are listed"},
+      {"begin too short", listing({1}, {0}, {}), "1 loans listed need 2 begin entries"},
+      {"begin past the changes", listing({1}, {0, 2}, {{1, 0.06}}),
+       "begin must run from 0 to the number of changes (1)"},
+      {"begin not from 0", listing({1}, {1, 1}, {{1, 0.06}}), "begin must run from 0"},
+      {"begin decreasing", listing({0, 1}, {0, 2, 1}, {{1, 0.06}}),
+       "begin must not decrease: entry 2 is 1 after 2"},
+      {"loan out of range", listing({2}, {0, 0}, {}), "listed loan 2 (entry 0) is past"},
+      {"loans descending", listing({1, 0}, {0, 0, 0}, {}), "strictly ascending"},
+      {"loan listed twice", listing({1, 1}, {0, 0, 0}, {}), "strictly ascending"},
+      {"month 0", listing({1}, {0, 1}, {{0, 0.06}}),
+       "loan 'A' (row 3): change in month 0 (months start at 1)"},
+      {"months not rising", listing({1}, {0, 2}, {{5, 0.06}, {5, 0.07}}),
+       "loan 'A' (row 3): change in month 5 follows one in month 5"},
+      {"months falling", listing({1}, {0, 2}, {{7, 0.06}, {5, 0.07}}),
+       "change in month 5 follows one in month 7"},
+      {"rate not a number", listing({1}, {0, 1}, {{3, nan}}),
+       "loan 'A' (row 3): rate nan in month 3 must be a finite number"},
+      {"rate infinite", listing({1}, {0, 1}, {{3, HUGE_VAL}}), "rate inf in month 3"},
+      {"rate below the fee", listing({1}, {0, 1}, {{3, 0.003}}),
+       "rate 0.003 in month 3 must be a finite number no lower than the servicing fee 0.00375"},
+  };
+  for (const Case& c : cases) {
+    SCOPED_TRACE(c.what);
+    ProjectionOptions o;
+    o.coupons = &c.paths;
+    try {
+      project_pool(loans, Assumptions{}, o);
+      ADD_FAILURE() << "no exception";
+    } catch (const std::invalid_argument& e) {
+      const std::string what = e.what();
+      EXPECT_NE(what.find("project_pool: coupon paths: "), std::string::npos) << what;
+      EXPECT_NE(what.find(c.message), std::string::npos) << what;
+    }
+  }
+}
+
+TEST(CouponPaths, EmptyListsAndLoansWithoutChangesChangeNothing) {
   const LoanArrays loans = two_loans();
+  const Assumptions a{.prepay = constant_curve(0.08), .default_rate = constant_curve(0.01)};
   ProjectionOptions o;
-  CouponPaths short_rates{.months = 12, .loans = {1}, .rates = std::vector<double>(11, 0.06)};
-  o.coupons = &short_rates;
-  EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
-  CouponPaths out_of_range{.months = 1, .loans = {2}, .rates = {0.06}};
-  o.coupons = &out_of_range;
-  EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
-  CouponPaths not_ascending{.months = 1, .loans = {1, 0}, .rates = {0.06, 0.05}};
-  o.coupons = &not_ascending;
-  EXPECT_THROW(project_pool(loans, Assumptions{}, o), std::invalid_argument);
+  o.loan_totals = true;
+  const Projection without = project_pool(loans, a, o);
+  const CouponPaths accepted[] = {
+      listing({}, {}, {}),                  // nothing listed
+      listing({}, {0}, {}),                 // nothing listed, begin given
+      listing({0, 1}, {0, 0, 0}, {}),       // listed, no changes
+      listing({1}, {0, 1}, {{1, 0.06}}),    // month 1 at the note rate
+      listing({1}, {0, 1}, {{400, 0.09}}),  // after the last month
+  };
+  for (const CouponPaths& paths : accepted) {
+    o.coupons = &paths;
+    expect_same_projection(project_pool(loans, a, o), without);  // identity: no rate moves
+  }
+}
+
+// identity: changes written out month by month and read back by coupon_changes project to the
+// same bits as the changes themselves, for every loan type (level pay, interest-only, balloon,
+// ARM), with changes in month 1, back to the note rate, that do not move the rate (every fifth
+// loan's second), and listed loans with none.
+TEST(CouponPaths, ChangesAndTheirMonthByMonthFormProjectToTheSameBits) {
+  const LoanArrays loans = make_loans(random_test_loans(3'000, 777));
+  CouponPaths sparse;
+  sparse.begin.push_back(0);
+  for (std::uint32_t i = 0; i < loans.size(); i += 3) {
+    const double note = loans.note_rate[i], fee = loans.servicing_fee[i];
+    const std::int32_t first = 1 + static_cast<std::int32_t>(i % 40);  // month 1 for i = 0, 120..
+    const CouponChange runs[] = {{first, note + 0.015},
+                                 {first + 7, note + 0.015 + 0.0025 * (i % 5)},
+                                 {first + 19, note},
+                                 {first + 20, std::max(fee, note - 0.01)},
+                                 {first + 60, note + 0.0325}};
+    sparse.loans.push_back(i);
+    const std::size_t kept = (i / 3) % 6;  // 0 to 5 changes
+    sparse.changes.insert(sparse.changes.end(), runs, runs + std::min<std::size_t>(kept, 5));
+    sparse.begin.push_back(static_cast<std::uint32_t>(sparse.changes.size()));
+  }
+  const int months = 480;
+  const CouponPaths dense =
+      coupon_changes(sparse.loans, months, coupon_rates(sparse, loans, months));
+  ASSERT_NE(dense.changes.size(), sparse.changes.size());  // month-1 entries, at least
+
+  std::vector<double> discount(1 + 480 + 12 + 1);
+  for (std::size_t t = 0; t < discount.size(); ++t)
+    discount[t] = std::pow(1 + 0.05 / 12, -static_cast<double>(t));
+  const Assumptions a{.prepay = standard_curve(CurveShape::psa, 1.5),
+                      .default_rate = standard_curve(CurveShape::sda, 2.0),
+                      .severity = constant_curve(0.4),
+                      .lag_months = 12,
+                      .advancing = Advancing::interest,
+                      .delinquent_default = true};
+  ProjectionOptions o;
+  o.loan_totals = true;
+  o.discount = discount;
+  o.coupons = &sparse;
+  const Projection from_sparse = project_pool(loans, a, o);
+  o.coupons = &dense;
+  const Projection from_dense = project_pool(loans, a, o);
+  expect_same_projection(from_sparse, from_dense);  // memcmp of every pool and loan vector
+  // and the changes moved something: the pool differs from no paths at all
+  o.coupons = nullptr;
+  EXPECT_NE(project_pool(loans, a, o).pool.gross_interest, from_sparse.pool.gross_interest);
+}
+
+// ---- coupon_changes
+
+TEST(CouponChanges, MonthOneThenEveryMonthThatDiffers) {
+  // Two loans over 6 months: 5% 5% 6% 6% 5% 5%, and 7% throughout.
+  const std::vector<double> rates = {0.05, 0.05, 0.06, 0.06, 0.05, 0.05,
+                                     0.07, 0.07, 0.07, 0.07, 0.07, 0.07};
+  const CouponPaths c = coupon_changes({3, 8}, 6, rates);
+  EXPECT_EQ(c.loans, (std::vector<std::uint32_t>{3, 8}));
+  EXPECT_EQ(c.begin, (std::vector<std::uint32_t>{0, 3, 4}));
+  ASSERT_EQ(c.changes.size(), 4u);
+  const std::pair<int, double> want[] = {{1, 0.05}, {3, 0.06}, {5, 0.05}, {1, 0.07}};
+  for (std::size_t j = 0; j < 4; ++j) {
+    EXPECT_EQ(c.changes[j].month, want[j].first) << j;
+    EXPECT_EQ(c.changes[j].rate, want[j].second) << j;
+  }
+  // One month: one change per loan. No loans: nothing, not even begin.
+  const CouponPaths one = coupon_changes({0, 1}, 1, std::vector<double>{0.04, 0.05});
+  EXPECT_EQ(one.begin, (std::vector<std::uint32_t>{0, 1, 2}));
+  EXPECT_EQ(one.changes[1].month, 1);
+  EXPECT_EQ(one.changes[1].rate, 0.05);
+  const CouponPaths none = coupon_changes({}, 12, {});
+  EXPECT_TRUE(none.loans.empty() && none.begin.empty() && none.changes.empty());
+}
+
+TEST(CouponChanges, RatesThatDoNotFitAreAnError) {
+  const std::vector<double> rates(11, 0.06);
+  try {
+    coupon_changes({1}, 12, rates);
+    FAIL() << "no exception";
+  } catch (const std::invalid_argument& e) {
+    EXPECT_STREQ(e.what(), "coupon_changes: 1 loans over 12 months need 12 rates, not 11");
+  }
+  EXPECT_THROW(coupon_changes({1}, 0, {}), std::invalid_argument);
+  EXPECT_THROW(coupon_changes({}, 0, {}), std::invalid_argument);
 }
 
 // ---- inputs the engine refuses

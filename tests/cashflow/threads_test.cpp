@@ -2,8 +2,9 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
-#include <cstring>
+#include <cstdint>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "cashflow/cashflow.h"
@@ -14,49 +15,18 @@ namespace {
 
 using namespace testing_support;
 
-// Bitwise equality of two double vectors (== would also pass -0.0 against 0.0 and fail NaN).
-void expect_same_bits(const std::vector<double>& a, const std::vector<double>& b,
-                      const std::string& what) {
-  ASSERT_EQ(a.size(), b.size()) << what;
-  EXPECT_EQ(std::memcmp(a.data(), b.data(), a.size() * sizeof(double)), 0) << what;
-}
-
-void expect_same_projection(const Projection& a, const Projection& b) {
-  EXPECT_EQ(a.pool.months, b.pool.months);
-  EXPECT_EQ(std::memcmp(&a.pool.cutoff_balance, &b.pool.cutoff_balance, sizeof(double)), 0);
-  const auto ca = all_columns(a.pool), cb = all_columns(b.pool);
-  ASSERT_EQ(ca.size(), cb.size());
-  for (std::size_t k = 0; k < ca.size(); ++k)
-    expect_same_bits(*ca[k].second, *cb[k].second, std::string("pool ") + ca[k].first);
-  const std::pair<const char*, std::vector<double> LoanFlows::*> loan_columns[] = {
-      {"sched_principal", &LoanFlows::sched_principal},
-      {"prepayment", &LoanFlows::prepayment},
-      {"defaults", &LoanFlows::defaults},
-      {"loss", &LoanFlows::loss},
-      {"recovery", &LoanFlows::recovery},
-      {"gross_interest", &LoanFlows::gross_interest},
-      {"servicing", &LoanFlows::servicing},
-      {"net_interest", &LoanFlows::net_interest},
-      {"advanced_interest", &LoanFlows::advanced_interest},
-      {"cash_flow", &LoanFlows::cash_flow},
-      {"wal_years", &LoanFlows::wal_years},
-      {"present_value", &LoanFlows::present_value},
-  };
-  for (const auto& [name, member] : loan_columns)
-    expect_same_bits(a.loans.*member, b.loans.*member, std::string("loans ") + name);
-  EXPECT_EQ(a.loans.last_month, b.loans.last_month);
-}
-
 TEST(Threads, SameBitsForAnyThreadCount) {
   const LoanArrays loans = make_loans(random_test_loans(20'000, 424'242));
   // Coupon paths for every 50th loan: a step up after a year, then a step down.
-  CouponPaths paths;
-  paths.months = 36;
+  const int months = 36;
+  std::vector<std::uint32_t> listed;
+  std::vector<double> rates;
   for (std::uint32_t i = 0; i < loans.size(); i += 50) {
-    paths.loans.push_back(i);
-    for (int t = 1; t <= paths.months; ++t)
-      paths.rates.push_back(loans.note_rate[i] + (t > 12 ? 0.02 : 0.0) - (t > 30 ? 0.01 : 0.0));
+    listed.push_back(i);
+    for (int t = 1; t <= months; ++t)
+      rates.push_back(loans.note_rate[i] + (t > 12 ? 0.02 : 0.0) - (t > 30 ? 0.01 : 0.0));
   }
+  const CouponPaths paths = coupon_changes(std::move(listed), months, rates);
   std::vector<double> discount(1 + 480 + 24 + 1);
   for (std::size_t t = 0; t < discount.size(); ++t)
     discount[t] = std::pow(1 + 0.05 / 12, -static_cast<double>(t));

@@ -4,6 +4,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cstdint>
 #include <limits>
 #include <optional>
@@ -35,10 +36,19 @@ struct TestLoan {
   Amortization amortization = Amortization::fixed;
   int io_months = 0;          // interest-only months from first payment; 0 = none
   int balloon_month = 0;      // loan month the balloon is paid; 0 = none
+  // ARM terms (any loan may carry them; only amortization == arm uses them).
+  std::string arm_index = "";     // index name; "" = none
+  double arm_margin = kNaN;
+  double arm_periodic_cap = kNaN;
+  double arm_lifetime_cap = kNaN;  // absolute rate
+  double arm_floor = kNaN;         // absolute rate
+  int arm_first_reset = 0;         // loan month of the first rate change; 0 = none
+  int arm_reset_period = 0;        // months between later changes; 0 = none
 };
 
-// Loans in order, tape rows 2, 3, ...; one seller, no ARM index; full documentation, single-family
-// purchases; fixed-rate 30-year loans with a 0.25% servicing fee unless the TestLoan says otherwise.
+// Loans in order, tape rows 2, 3, ...; one seller; full documentation, single-family purchases;
+// fixed-rate 30-year loans with a 0.25% servicing fee and no ARM terms unless the TestLoan says
+// otherwise. ARM index names are numbered from 1 in order of first appearance.
 inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
   LoanArrays a;
   a.seller_names = {"test seller"};
@@ -58,13 +68,19 @@ inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
     a.amortization.push_back(t.amortization);
     a.io_months.push_back(t.io_months);
     a.balloon_month.push_back(t.balloon_month);
-    a.arm_index.push_back(0);
-    a.arm_margin.push_back(kNaN);
-    a.arm_periodic_cap.push_back(kNaN);
-    a.arm_lifetime_cap.push_back(kNaN);
-    a.arm_floor.push_back(kNaN);
-    a.arm_first_reset.push_back(0);
-    a.arm_reset_period.push_back(0);
+    std::uint8_t arm_index = 0;
+    if (!t.arm_index.empty()) {
+      const auto found = std::find(a.arm_index_names.begin(), a.arm_index_names.end(), t.arm_index);
+      arm_index = static_cast<std::uint8_t>(found - a.arm_index_names.begin());
+      if (found == a.arm_index_names.end()) a.arm_index_names.push_back(t.arm_index);
+    }
+    a.arm_index.push_back(arm_index);
+    a.arm_margin.push_back(t.arm_margin);
+    a.arm_periodic_cap.push_back(t.arm_periodic_cap);
+    a.arm_lifetime_cap.push_back(t.arm_lifetime_cap);
+    a.arm_floor.push_back(t.arm_floor);
+    a.arm_first_reset.push_back(t.arm_first_reset);
+    a.arm_reset_period.push_back(t.arm_reset_period);
     a.credit_score.push_back(t.score);
     a.original_ltv.push_back(t.ltv);
     a.combined_ltv.push_back(t.cltv);

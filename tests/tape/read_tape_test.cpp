@@ -587,9 +587,10 @@ TEST(Rejects, ServicingFeeNotBelowNoteRate) {
                 "servicing fee 7% not below note rate 6.5%");
 }
 
-TEST(Rejects, ArmWithoutMarginFirstResetOrResetPeriod) {
+TEST(Rejects, ArmWithoutIndexMarginFirstResetOrResetPeriod) {
   const TapeRead t = read_second_row({{"amortization_type", "ARM"}});
   EXPECT_EQ(t.rows_rejected, 1u);
+  EXPECT_NE(problem_at(t, 3, "arm_index").reason.find("ARM without an index"), std::string::npos);
   EXPECT_NE(problem_at(t, 3, "arm_margin").reason.find("ARM without a margin"), std::string::npos);
   EXPECT_NE(problem_at(t, 3, "arm_first_reset").reason.find("first reset"), std::string::npos);
   EXPECT_NE(problem_at(t, 3, "arm_reset_period").reason.find("reset period"), std::string::npos);
