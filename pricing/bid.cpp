@@ -1,0 +1,191 @@
+// price_pool: projects a pool (loss-adjusted and no-loss), solves the price for a bid target and
+// reads every measure at that price; effective duration re-projects under the shifted curve.
+#include <fmt/core.h>
+
+#include <algorithm>
+#include <cmath>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "pricing/pricing.h"
+
+namespace poolbid {
+namespace {
+
+// The last month any loan can pay (its remaining term, or an earlier balloon) plus the
+// liquidation lag: the grid and the coupon paths run this far.
+int horizon_months(const LoanArrays& loans, const Assumptions& assumptions) {
+  int longest = 0;
+  for (std::size_t i = 0; i < loans.size(); ++i)
+    longest = std::max(longest, loans.remaining_term[i]);
+  return longest + std::max(assumptions.lag_months, 0) + 1;
+}
+
+// Index names the tape's ARMs read, in arm_index order.
+std::vector<std::string> arm_index_names(const LoanArrays& loans) {
+  std::vector<bool> used(loans.arm_index_names.size(), false);
+  for (std::size_t i = 0; i < loans.size(); ++i)
+    if (loans.amortization[i] == Amortization::arm) used[loans.arm_index[i]] = true;
+  std::vector<std::string> names;
+  for (std::size_t k = 1; k < used.size(); ++k)
+    if (used[k]) names.push_back(loans.arm_index_names[k]);
+  return names;
+}
+
+std::size_t count_arms(const LoanArrays& loans) {
+  return static_cast<std::size_t>(
+      std::count(loans.amortization.begin(), loans.amortization.end(), Amortization::arm));
+}
+
+// Projects the pool on one curve: ARMs follow that curve's index forwards.
+Projection project_on(const LoanArrays& loans, const YieldCurve& curve, const Assumptions& a,
+                      const BidRequest& request, int horizon, bool loan_totals,
+                      std::span<const double> discount = {}) {
+  std::optional<CouponPaths> coupons;
+  if (count_arms(loans) > 0) {
+    const std::vector<std::string> names = arm_index_names(loans);
+    coupons = arm_coupon_paths(
+        loans, index_paths(curve, names, request.settlement.cutoff, horizon));
+  }
+  ProjectionOptions options;
+  options.threads = request.threads;
+  options.loan_totals = loan_totals;
+  options.discount = discount;
+  options.coupons = coupons ? &*coupons : nullptr;
+  return project_pool(loans, a, options);
+}
+
+Assumptions without_defaults(Assumptions a) {
+  a.default_rate = constant_curve(0);
+  a.delinquent_default = false;
+  return a;
+}
+
+std::string price_text(double pv, double balance) {
+  return fmt::format("{:.6f}% of UPB", balance > 0 ? pv / balance * 100 : 0.0);
+}
+
+// Every measure of one view at the bid's dirty value `pv`.
+PoolView read_view(const PoolFlows& pool, const PaymentGrid& grid, const YieldCurve& curve,
+                   double pv, double balance, const char* which) {
+  const std::span<const double> cash(pool.cash_flow);
+  PoolView view;
+  const std::optional<Rate> cfy = yield_for_pv(cash, grid, pv);
+  if (!cfy)
+    throw PricingError(fmt::format(
+        "no cash-flow yield prices the {} flows at a dirty value of {} ({}): the flows total "
+        "${:.2f}",
+        which, fmt::format("${:.2f}", pv), price_text(pv, balance),
+        [&] {
+          double total = 0;
+          for (double c : cash) total += c;
+          return total;
+        }()));
+  const std::optional<double> z = spread_for_pv(cash, grid, pv);
+  if (!z)
+    throw PricingError(fmt::format("no Z-spread over the curve prices the {} flows at {}", which,
+                                   price_text(pv, balance)));
+  view.cfy = *cfy;
+  view.bey = bey_from_cfy(*cfy);
+  view.z_spread = *z;
+  view.wal_years = wal_years(pool);
+  view.par_yield_at_wal = view.wal_years > 0 ? par_yield(curve, view.wal_years) : 0;
+  view.spread_at_wal = view.bey - view.par_yield_at_wal;
+  view.modified_duration = modified_duration(cash, grid, *cfy);
+  return view;
+}
+
+}  // namespace
+
+BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const BidRequest& request) {
+  BidResult result;
+  const Settlement& settlement = request.settlement;
+  double balance = 0, net = 0;
+  for (std::size_t i = 0; i < loans.size(); ++i) {
+    balance += loans.current_balance[i];
+    net += loans.current_balance[i] * (loans.note_rate[i] - loans.servicing_fee[i]);
+  }
+  if (!(balance > 0)) throw PricingError("no loans to price: the tape has no accepted loan");
+  if (!(request.shock_bp > 0))
+    throw std::invalid_argument(fmt::format("shock of {} bp: must be above 0", request.shock_bp));
+  result.cutoff_balance = balance;
+  result.net_coupon = net / balance;
+  result.arm_loans = count_arms(loans);
+
+  const int horizon = horizon_months(loans, request.assumptions);
+  const PaymentGrid grid = payment_grid(curve, settlement, horizon);
+  result.accrued =
+      accrued_interest(balance, result.net_coupon, settlement.cutoff, settlement.settle);
+
+  // With a yield target the pool's yield is known before projecting, so per-loan values come
+  // from the first projection; otherwise they need a second one at the solved yield.
+  std::vector<double> loan_discount;
+  auto discount_at = [&](Rate cfy) {
+    loan_discount.assign(static_cast<std::size_t>(horizon) + 1, 0.0);
+    for (int t = 1; t <= horizon; ++t)
+      loan_discount[t] = std::pow(1 + cfy / 12, -12 * grid.years_30_360[t - 1]);
+    return std::span<const double>(loan_discount);
+  };
+  const bool values_now = request.loan_values && request.target == BidTarget::yield;
+  result.flows = project_on(loans, curve, request.assumptions, request, horizon, values_now,
+                            values_now ? discount_at(cfy_from_bey(request.value))
+                                       : std::span<const double>{});
+  const PoolFlows& pool = result.flows.pool;
+  const std::span<const double> cash(pool.cash_flow);
+
+  double pv = 0;
+  switch (request.target) {
+    case BidTarget::yield:
+      pv = pv_at_yield(cash, grid, cfy_from_bey(request.value));
+      break;
+    case BidTarget::spread:
+      pv = pv_at_spread(cash, grid, request.value);
+      break;
+    case BidTarget::price:
+      pv = (request.value / 100) * balance + result.accrued;
+      break;
+  }
+  if (!(pv > 0) || !std::isfinite(pv))
+    throw PricingError(fmt::format("the target gives a dirty value of ${:.2f} ({}): nothing to bid",
+                                   pv, price_text(pv, balance)));
+  result.dirty_value = pv;
+  result.clean_value = pv - result.accrued;
+  result.dirty_price = pv / balance * 100;
+  result.clean_price = result.clean_value / balance * 100;
+
+  const Assumptions no_loss = without_defaults(request.assumptions);
+  result.no_loss_flows = project_on(loans, curve, no_loss, request, horizon, false).pool;
+  result.loss_adjusted = read_view(pool, grid, curve, pv, balance, "loss-adjusted");
+  result.no_loss = read_view(result.no_loss_flows, grid, curve, pv, balance, "no-loss");
+  result.credit_cost_bp = (result.no_loss.z_spread - result.loss_adjusted.z_spread) * 1e4;
+  for (double loss : pool.loss) result.expected_loss += loss;
+  result.expected_loss_pct = result.expected_loss / balance * 100;
+
+  // Effective duration and convexity: the curve moved by +/- the shock, the loss-adjusted flows
+  // re-projected where they read the curve (ARM coupons), the Z-spread held.
+  const double shock = request.shock_bp / 1e4;
+  double shocked_pv[2] = {0, 0};
+  for (int side = 0; side < 2; ++side) {
+    const YieldCurve moved = shift_curve(curve, side == 0 ? request.shock_bp : -request.shock_bp);
+    const PaymentGrid moved_grid = payment_grid(moved, settlement, horizon);
+    if (result.arm_loans > 0) {
+      const Projection p = project_on(loans, moved, request.assumptions, request, horizon, false);
+      shocked_pv[side] = pv_at_spread(p.pool.cash_flow, moved_grid, result.loss_adjusted.z_spread);
+    } else {
+      shocked_pv[side] = pv_at_spread(cash, moved_grid, result.loss_adjusted.z_spread);
+    }
+  }
+  const double base_pv = pv_at_spread(cash, grid, result.loss_adjusted.z_spread);
+  const double up = shocked_pv[0], down = shocked_pv[1];
+  result.effective_duration = (down - up) / (2 * base_pv * shock);
+  result.effective_convexity = (up + down - 2 * base_pv) / (base_pv * shock * shock);
+  result.dv01 = (down - up) / (2 * request.shock_bp);
+
+  if (request.loan_values && !values_now)
+    result.flows = project_on(loans, curve, request.assumptions, request, horizon, true,
+                              discount_at(result.loss_adjusted.cfy));
+  return result;
+}
+
+}  // namespace poolbid
