@@ -3,7 +3,10 @@
 #include <CLI/CLI.hpp>
 #include <fmt/core.h>
 
+#include <charconv>
+#include <chrono>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <functional>
 #include <fstream>
@@ -16,6 +19,7 @@
 
 #include "cashflow/cashflow.h"
 #include "curves/curves.h"
+#include "pricing/pricing.h"
 #include "report/report.h"
 #include "tape/tape.h"
 
@@ -31,6 +35,7 @@ enum ExitCode : int {
   kUnusableTape = 4,   // the tape cannot be read as a tape at all; nothing written
   kUnusableInput = 5,  // a column map, option value or other input file is unusable
   kCannotWrite = 6,    // an output file could not be written; nothing left behind
+  kNoSolution = 7,     // no price meets the target, or a measure has no solution; nothing written
 };
 
 int exit_code_for(const TapeError& e) {
@@ -143,22 +148,14 @@ struct TapeArgs {
   }
 };
 
-// Options of `poolbid cashflows` beyond the tape's.
-struct CashflowArgs {
-  TapeArgs tape;
-  std::string assumptions_file;
+// The assumption options shared by `cashflows` and `price`.
+struct AssumptionArgs {
+  std::string file;
   std::optional<std::string> prepay, default_rate, severity, lag, advancing;
   bool delinquent_default = false;
-  std::string csv;    // "" = none; "-" = standard output
-  std::string loans;  // "" = none; "-" = standard output (only beside --csv FILE)
-  unsigned threads = 0;
-  int delay_days = 17;  // illustrative (DESIGN.md section 5): cash paid on the 18th
 
   void add_to(CLI::App& cmd) {
-    tape.add_to(cmd);
-    cmd.get_option("--cutoff")
-        ->description("cut-off date YYYY-MM-01; needed here or in the column map (payment dates)");
-    cmd.add_option("--assumptions", assumptions_file,
+    cmd.add_option("--assumptions", file,
                    "assumptions file (JSON); the options below override it");
     cmd.add_option("--prepay", prepay,
                    "prepayment: cpr:8, psa:150, cpr:6,7,8, cpr:2..8/24 (default none)");
@@ -172,23 +169,12 @@ struct CashflowArgs {
                    "what the servicer advances on defaulted loans: none (default) or interest");
     cmd.add_flag("--delinquent-default", delinquent_default,
                  "loans 90+ days delinquent or in foreclosure default in month 1");
-    cmd.add_option("--csv", csv, "write the monthly pool table as CSV to FILE ('-': stdout)")
-        ->excludes("--json");
-    cmd.add_option("--loans", loans, "write per-loan lifetime totals as CSV to FILE");
-    cmd.add_option("--threads", threads, "worker threads; 0 = every core (results do not change)")
-        ->check(CLI::Range(0u, 4096u))
-        ->capture_default_str();
-    cmd.add_option("--delay", delay_days,
-                   "payment delay: cash of a month is paid this many days after the first of "
-                   "the next month")
-        ->check(CLI::Range(0, 366))
-        ->capture_default_str();
   }
 
   // The assumptions file, if any, then each option given over it. Throws AssumptionError.
   Assumptions assumptions() const {
     Assumptions a;
-    if (!assumptions_file.empty()) a = load_assumptions(assumptions_file, a);
+    if (!file.empty()) a = load_assumptions(file, a);
     if (prepay) a.prepay = parse_prepay(*prepay);
     if (default_rate) a.default_rate = parse_default(*default_rate);
     if (severity) a.severity = parse_severity(*severity);
@@ -196,6 +182,83 @@ struct CashflowArgs {
     if (advancing) a.advancing = parse_advancing(*advancing);
     if (delinquent_default) a.delinquent_default = true;
     return a;
+  }
+};
+
+void add_threads_and_delay(CLI::App& cmd, unsigned& threads, int& delay_days) {
+  cmd.add_option("--threads", threads, "worker threads; 0 = every core (results do not change)")
+      ->check(CLI::Range(0u, 4096u))
+      ->capture_default_str();
+  cmd.add_option("--delay", delay_days,
+                 "payment delay: cash of a month is paid this many days after the first of "
+                 "the next month")
+      ->check(CLI::Range(0, 366))
+      ->capture_default_str();
+}
+
+// Options of `poolbid cashflows` beyond the tape's.
+struct CashflowArgs {
+  TapeArgs tape;
+  AssumptionArgs assumption;
+  std::string csv;    // "" = none; "-" = standard output
+  std::string loans;  // "" = none; "-" = standard output (only beside --csv FILE)
+  unsigned threads = 0;
+  int delay_days = 17;  // illustrative (DESIGN.md section 5): cash paid on the 18th
+
+  void add_to(CLI::App& cmd) {
+    tape.add_to(cmd);
+    cmd.get_option("--cutoff")
+        ->description("cut-off date YYYY-MM-01; needed here or in the column map (payment dates)");
+    assumption.add_to(cmd);
+    cmd.add_option("--csv", csv, "write the monthly pool table as CSV to FILE ('-': stdout)")
+        ->excludes("--json");
+    cmd.add_option("--loans", loans, "write per-loan lifetime totals as CSV to FILE");
+    add_threads_and_delay(cmd, threads, delay_days);
+  }
+};
+
+// Options of `poolbid price` beyond the tape's.
+struct PriceArgs {
+  TapeArgs tape;
+  AssumptionArgs assumption;
+  std::string curve;  // a curve file, or a flat rate in percent
+  std::optional<double> target_yield, target_spread, price;
+  std::string settle;
+  std::string loans;  // "" = none
+  double shock_bp = 25;
+  unsigned threads = 0;
+  int delay_days = 17;
+
+  void add_to(CLI::App& cmd) {
+    tape.add_to(cmd);
+    cmd.get_option("--cutoff")
+        ->description("cut-off date YYYY-MM-01; needed here or in the column map (payment dates)");
+    cmd.add_option("--curve", curve,
+                   "yield curve: a curve file (JSON quotes), or one number for a flat "
+                   "continuously compounded rate in percent (4.25)")
+        ->required();
+    assumption.add_to(cmd);
+    CLI::Option* y = cmd.add_option("--target-yield", target_yield,
+                                    "bid at this loss-adjusted bond-equivalent yield, percent");
+    CLI::Option* z = cmd.add_option("--target-spread", target_spread,
+                                    "bid at this loss-adjusted Z-spread over the curve, bp");
+    CLI::Option* p = cmd.add_option("--price", price,
+                                    "read every measure at this clean price, percent of UPB");
+    y->check(CLI::Range(-10.0, 100.0));
+    z->check(CLI::Range(-5000.0, 10000.0));
+    p->check(CLI::Range(0.001, 1000.0));
+    y->excludes(z)->excludes(p);
+    z->excludes(p);
+    cmd.add_option("--settle", settle,
+                   "settlement date YYYY-MM-DD (default: the cut-off date, or the curve's date "
+                   "if later)");
+    cmd.add_option("--loans", loans,
+                   "write each loan's value at the pool's yield as CSV to FILE");
+    cmd.add_option("--shock", shock_bp,
+                   "curve move for effective duration and convexity, bp")
+        ->check(CLI::Range(0.01, 500.0))
+        ->capture_default_str();
+    add_threads_and_delay(cmd, threads, delay_days);
   }
 };
 
@@ -220,7 +283,7 @@ void check_outputs(const CashflowArgs& args) {
   const std::vector<std::pair<std::string, std::string>> inputs = {
       {"the tape", args.tape.tape},
       {"the column map", args.tape.map},
-      {"the assumptions file", args.assumptions_file}};
+      {"the assumptions file", args.assumption.file}};
   for (const auto& [option, path] : {std::pair{"--csv", args.csv}, {"--loans", args.loans}}) {
     if (path.empty() || path == "-") continue;
     for (const auto& [what, input] : inputs)
@@ -232,24 +295,29 @@ void check_outputs(const CashflowArgs& args) {
     throw UsageError(fmt::format("--csv and --loans name one file '{}'", args.csv));
 }
 
+// The tape's cut-off date; commands that date their cash need one.
+Date require_cutoff(const TapeRead& tape, std::string_view what) {
+  if (!tape.cutoff)
+    throw TapeError(ErrorKind::bad_option, tape.file, 0, "--cutoff", "",
+                    fmt::format("{}: no cut-off date; {} need one for their payment dates: give "
+                                "--cutoff YYYY-MM-01 or the column map's cutoff_date",
+                                tape.file, what));
+  return *tape.cutoff;
+}
+
 // `poolbid cashflows`: read, project, write. Rejected rows are listed on stderr when stdout carries
 // a CSV table, in the report otherwise; either way the exit code is 3.
 int run_cashflows(const CashflowArgs& args) {
   check_outputs(args);
   const ReadOptions read_options = args.tape.read_options();
-  const Assumptions assumptions = args.assumptions();
+  const Assumptions assumptions = args.assumption.assumptions();
   const TapeRead tape = read_tape(args.tape.tape, read_options);
-  if (!tape.cutoff)
-    throw TapeError(ErrorKind::bad_option, tape.file, 0, "--cutoff", "",
-                    fmt::format("{}: no cut-off date; cash flows need one for their payment "
-                                "dates: give --cutoff YYYY-MM-01 or the column map's cutoff_date",
-                                tape.file));
+  const Date cutoff = require_cutoff(tape, "cash flows");
 
   ProjectionOptions options;
   options.threads = args.threads;
   options.loan_totals = !args.loans.empty();
   const Projection projection = project_pool(tape.loans, assumptions, options);
-  const Date cutoff = *tape.cutoff;
 
   std::vector<OutputFile> files;
   std::string document;  // standard output
@@ -280,13 +348,129 @@ int run_cashflows(const CashflowArgs& args) {
   return tape.rows_rejected > 0 ? kRowsRejected : kOk;
 }
 
+// An option value that is unusable (exit 5).
+[[noreturn]] void bad_option(const std::string& option, const std::string& value,
+                             const std::string& message) {
+  throw TapeError(ErrorKind::bad_option, "", 0, option, value,
+                  fmt::format("{} '{}': {}", option, value, message));
+}
+
+std::string iso_text(Date d) {
+  return fmt::format("{:04d}-{:02d}-{:02d}", static_cast<int>(d.year()),
+                     static_cast<unsigned>(d.month()), static_cast<unsigned>(d.day()));
+}
+
+// `--curve`: a curve file, read before the tape so a bad curve stops the command at once; or a
+// flat rate in percent ("4.25"), dated at the tape's cut-off.
+struct CurveOption {
+  std::string text;
+  std::optional<YieldCurve> file;
+
+  bool flat() const {
+    double percent = 0;
+    const char* end = text.data() + text.size();
+    const auto [ptr, ec] = std::from_chars(text.data(), end, percent);
+    return !text.empty() && ec == std::errc() && ptr == end;
+  }
+  void load() {
+    if (!flat()) {
+      file = load_yield_curve(text);
+      return;
+    }
+    const double percent = std::strtod(text.c_str(), nullptr);
+    if (!(percent > -5 && percent < 30))
+      bad_option("--curve", text, "a flat rate wants a percent from -5 to 30");
+  }
+  std::string file_path() const { return flat() ? std::string() : text; }
+  // "4.1" is read as "4.1e-2", so the rate is the double nearest 0.041 (not 4.1 / 100).
+  YieldCurve curve(Date cutoff) const {
+    return flat() ? flat_yield_curve(std::strtod((text + "e-2").c_str(), nullptr), cutoff) : *file;
+  }
+};
+
+// `poolbid price`: read, project, value, solve, write. Rejected rows are listed in the report and
+// the exit code is 3; a target no price can meet is 7.
+int run_price(const PriceArgs& args) {
+  if (!args.target_yield && !args.target_spread && !args.price)
+    throw UsageError("price: say what to bid for: --target-yield Y (percent), --target-spread BP "
+                     "or --price P (clean, percent of UPB)");
+  if (args.loans == "-")
+    throw UsageError("--loans -: standard output already carries the report; give --loans a file");
+  CurveOption curve_option{args.curve, std::nullopt};
+  if (!args.loans.empty()) {
+    const std::vector<std::pair<std::string, std::string>> inputs = {
+        {"the tape", args.tape.tape},
+        {"the column map", args.tape.map},
+        {"the assumptions file", args.assumption.file},
+        {"the curve file", curve_option.file_path()}};
+    for (const auto& [what, input] : inputs)
+      if (!input.empty() && same_file(args.loans, input))
+        throw UsageError(fmt::format("--loans '{}' would overwrite {}", args.loans, what));
+  }
+  const ReadOptions read_options = args.tape.read_options();
+  const Assumptions assumptions = args.assumption.assumptions();
+  std::optional<Date> settle;
+  if (!args.settle.empty()) {
+    settle = parse_date(args.settle);
+    if (!settle) bad_option("--settle", args.settle, "wants a date as YYYY-MM-DD or M/D/YYYY");
+  }
+  curve_option.load();
+
+  const TapeRead tape = read_tape(args.tape.tape, read_options);
+  const Date cutoff = require_cutoff(tape, "prices");
+  const YieldCurve curve = curve_option.curve(cutoff);
+  using std::chrono::sys_days;
+  if (!settle) settle = sys_days{curve.as_of} > sys_days{cutoff} ? curve.as_of : cutoff;
+  if (sys_days{*settle} < sys_days{cutoff})
+    bad_option("--settle", args.settle,
+               fmt::format("settlement before the cut-off date {}", iso_text(cutoff)));
+  if (sys_days{*settle} < sys_days{curve.as_of})
+    bad_option("--settle", args.settle,
+               fmt::format("settlement before the curve's date {} ({})", iso_text(curve.as_of),
+                           curve.source));
+
+  const Date first_payment = payment_date(cutoff, 1, args.delay_days);
+  if (!(sys_days{*settle} < sys_days{first_payment}))
+    bad_option("--settle", args.settle.empty() ? iso_text(*settle) : args.settle,
+               fmt::format("settlement on or after the first payment date {}: move the cut-off "
+                           "date",
+                           iso_text(first_payment)));
+
+  BidRequest request;
+  if (args.target_yield) {
+    request.target = BidTarget::yield;
+    request.value = *args.target_yield / 100;
+  } else if (args.target_spread) {
+    request.target = BidTarget::spread;
+    request.value = *args.target_spread / 1e4;
+  } else {
+    request.target = BidTarget::price;
+    request.value = *args.price;
+  }
+  request.settlement = Settlement{cutoff, *settle, args.delay_days};
+  request.assumptions = assumptions;
+  request.shock_bp = args.shock_bp;
+  request.threads = args.threads;
+  request.loan_values = !args.loans.empty();
+  const BidResult result = price_pool(tape.loans, curve, request);
+
+  const std::string document = args.tape.json ? price_json(tape, curve, request, result)
+                                               : price_text(tape, curve, request, result);
+  if (!args.loans.empty())
+    write_file_whole(args.loans, [&](std::ostream& out) {
+      write_loan_values_csv(out, tape.loans, result);
+    });
+  write_stdout(document);
+  return tape.rows_rejected > 0 ? kRowsRejected : kOk;
+}
+
 int finish_tape_command(const TapeRead& tape, const std::string& document) {
   write_stdout(document);
   return tape.rows_rejected > 0 ? kRowsRejected : kOk;
 }
 
 int run(int argc, char** argv) {
-  CLI::App app{"poolbid: check, stratify and project a residential mortgage loan tape.\n"
+  CLI::App app{"poolbid: check, stratify, project and price a residential mortgage loan tape.\n"
                "Results are estimates under stated assumptions, not investment advice."};
   app.require_subcommand(1);
   app.set_version_flag("--version", "poolbid 0.1.0");
@@ -303,6 +487,11 @@ int run(int argc, char** argv) {
   CLI::App* cashflows = app.add_subcommand(
       "cashflows", "project the accepted loans' monthly cash flows under stated assumptions");
   cashflow_args.add_to(*cashflows);
+
+  PriceArgs price_args;
+  CLI::App* price = app.add_subcommand(
+      "price", "value the accepted loans on a yield curve and solve the bid for a target");
+  price_args.add_to(*price);
 
   DemoTapeOptions demo;
   std::string demo_out;
@@ -338,6 +527,7 @@ int run(int argc, char** argv) {
           tape, strats_args.json ? strats_json(tape, s) : strats_text(tape, s));
     }
     if (*cashflows) return run_cashflows(cashflow_args);
+    if (*price) return run_price(price_args);
     if (*demo_cmd) {
       demo.profile = demo_profile == "loose" ? DemoProfile::loose : DemoProfile::strict;
       demo.layout = demo_layout == "seller-coded" ? DemoLayout::seller_coded
@@ -357,6 +547,12 @@ int run(int argc, char** argv) {
   } catch (const AssumptionError& e) {
     fmt::print(stderr, "poolbid: {}\n", e.what());
     return kUnusableInput;
+  } catch (const CurveError& e) {
+    fmt::print(stderr, "poolbid: {}\n", e.what());
+    return kUnusableInput;
+  } catch (const PricingError& e) {
+    fmt::print(stderr, "poolbid: {}\n", e.what());
+    return kNoSolution;
   } catch (const UsageError& e) {
     fmt::print(stderr, "poolbid: {}\n", e.what());
     return kUsage;

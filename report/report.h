@@ -18,6 +18,9 @@ struct LoanArrays;
 struct Assumptions;
 struct PoolFlows;
 struct LoanFlows;
+struct YieldCurve;
+struct BidRequest;
+struct BidResult;
 
 // `poolbid check`: rows read / accepted / rejected / with warnings, UPB accepted and rejected,
 // file-level notes, then every problem (row, loan id, column, value, reason).
@@ -55,6 +58,29 @@ std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
 //  "caution"}; "months" entries have the CSV's keys, numbers unrounded.
 std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
                           const PoolFlows& pool, int delay_days);
+
+// `poolbid price`: the bid and what it means. Keys, columns and units are documented in the README
+// and are a public interface.
+//
+// Terminal report: tape, curve and assumptions; the bid (clean and dirty, % and $, accrued); a
+// two-column table of the loss-adjusted and no-loss views (yield, BEY, Z-spread, spread at WAL,
+// WAL, modified duration); credit cost; expected loss; effective duration, convexity, DV01;
+// every rejected row; the caution.
+std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidRequest& request,
+                       const BidResult& result);
+// {"file", "cutoff_date", "settlement_date", "payment_delay_days", "curve", "assumptions",
+//  "target", "bid", "loss_adjusted", "no_loss", "credit", "risk", "loans_priced", "rejected",
+//  "caution"}; rates and spreads as decimals, prices in percent, money in dollars, unrounded.
+std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidRequest& request,
+                       const BidResult& result);
+// Each loan's value at the pool's loss-adjusted cash-flow yield, one line per loan in tape order
+// (needs BidResult::flows.loans with present_value). value = the loan's allocated share of the
+// dirty bid in dollars (values sum to the pool's dirty value); dirty_price = value / balance x 100.
+std::string loan_values_csv(const LoanArrays& loans, const BidResult& result);
+void write_loan_values_csv(std::ostream& out, const LoanArrays& loans, const BidResult& result);
+inline constexpr std::string_view kLoanValuesCsvHeader =
+    "loan_id,row,seller,cutoff_balance,note_rate,value,dirty_price,wal_years,expected_loss,"
+    "loss_pct";
 
 // Every rejecting problem of a tape, one line each (row, loan id, column, value, reason), under
 // a line counting the rows; "" when no row was rejected. For standard error when the standard

@@ -1,0 +1,544 @@
+// `poolbid price` reports: the bid as a terminal text report and a JSON document (tape, curve,
+// assumptions, target, bid, loss-adjusted and no-loss views, credit, risk, rejected rows), and
+// each loan's value at the pool's yield as CSV. Units: JSON rates and spreads decimals, prices
+// percent of cut-off UPB, money dollars, fields ending in _bp basis points; CSV as its header says.
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <iterator>
+#include <limits>
+#include <ostream>
+#include <stdexcept>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include <fmt/compile.h>
+#include <fmt/core.h>
+#include <fmt/format.h>
+
+#include "cashflow/cashflow.h"
+#include "curves/curves.h"
+#include "pricing/pricing.h"
+#include "report/format.h"
+#include "report/report.h"
+#include "tape/tape.h"
+
+namespace poolbid {
+namespace {
+
+using detail::Align;
+using detail::Json;
+
+using detail::count_text;
+using detail::kLoanIdWidth;
+using detail::kValueWidth;
+using detail::number_or_null;
+
+using Buffer = fmt::memory_buffer;
+
+// Text report.
+constexpr int kPriceDecimals = 3;     // percent of UPB: 98.625
+constexpr int kRateDecimals = 3;      // yields in percent: 7.250
+constexpr int kBpDecimals = 1;        // spreads in basis points
+constexpr int kYearsDecimals = 2;     // WAL, durations, convexity
+constexpr int kLossPctDecimals = 4;   // expected loss, percent of UPB
+// Loans CSV.
+constexpr int kCsvPriceDecimals = 6;
+constexpr int kCsvRateDecimals = 4;   // note rate, percent
+constexpr int kCsvWalDecimals = 4;
+constexpr int kCsvLossPctDecimals = 4;
+constexpr std::size_t kStreamChunkBytes = std::size_t{1} << 20;
+
+// ---- CSV cells (the same rules as the cash-flow report's loans CSV) -----------------------------
+
+// x to `decimals` places (0 to 12); a value that rounds to zero is "0.00", never "-0.00"; an
+// empty cell when x is NaN or infinite.
+void put_fixed(Buffer& out, double x, int decimals) {
+  static constexpr std::array<double, 13> kHalfUnit = {
+      0.5, 0.05, 5e-3, 5e-4, 5e-5, 5e-6, 5e-7, 5e-8, 5e-9, 5e-10, 5e-11, 5e-12, 5e-13};
+  if (!std::isfinite(x)) return;
+  if (std::fabs(x) < kHalfUnit[static_cast<std::size_t>(decimals)]) x = 0.0;
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{:.{}f}"), x, decimals);
+}
+
+// Dollars to the cent, as whole cents rounded half away from zero.
+void put_money(Buffer& out, double x) {
+  if (!std::isfinite(x)) return;
+  if (!(std::fabs(x) < 1e15)) {  // beyond exact cents in a double; never a loan's
+    put_fixed(out, x, 2);
+    return;
+  }
+  const long long cents = std::llround(x * 100);
+  if (cents < 0) out.push_back('-');
+  const unsigned long long magnitude =
+      cents < 0 ? 0ULL - static_cast<unsigned long long>(cents)
+                : static_cast<unsigned long long>(cents);
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{}.{:02}"), magnitude / 100,
+                 magnitude % 100);
+}
+
+// A CSV cell as RFC 4180 writes it: quoted, with quotes doubled, when it holds a comma, a quote
+// or a line break; as is otherwise.
+void put_csv_text(Buffer& out, std::string_view text) {
+  if (text.find_first_of(",\"\r\n") == std::string_view::npos) {
+    out.append(text);
+    return;
+  }
+  out.push_back('"');
+  for (char ch : text) {
+    if (ch == '"') out.push_back('"');
+    out.push_back(ch);
+  }
+  out.push_back('"');
+}
+
+// ---- Text pieces --------------------------------------------------------------------------------
+
+// A decimal rate as percent: 0.0725 -> "7.250"; "-" when not finite.
+std::string percent(double rate, int decimals = kRateDecimals) {
+  return detail::fixed_or_dash(100 * rate, decimals);
+}
+
+// A decimal spread in basis points: 0.02505 -> "250.5".
+std::string basis_points(double spread) {
+  return detail::fixed_or_dash(1e4 * spread, kBpDecimals);
+}
+
+// A number as typed, without trailing zeros: 250 -> "250", 12.5 -> "12.5", up to 4 places.
+std::string short_number(double x, bool sign = false) {
+  if (!std::isfinite(x)) return "-";
+  std::string text = sign ? fmt::format("{:+.4f}", x) : fmt::format("{:.4f}", x);
+  text.erase(text.find_last_not_of('0') + 1);
+  if (text.back() == '.') text.pop_back();
+  if (text == "-0" || text == "+0") text = sign ? "+0" : "0";
+  return text;
+}
+
+std::string_view kind_name(CurveQuote::Kind kind) {
+  switch (kind) {
+    case CurveQuote::Kind::deposit: return "deposit";
+    case CurveQuote::Kind::swap: return "swap";
+    case CurveQuote::Kind::par_yield: return "par_yield";
+  }
+  return "unknown";
+}
+
+std::string_view target_name(BidTarget target) {
+  switch (target) {
+    case BidTarget::yield: return "yield";
+    case BidTarget::spread: return "spread";
+    case BidTarget::price: return "price";
+  }
+  return "unknown";
+}
+
+// "target: loss-adjusted yield 7.250% BEY" and its kin.
+std::string target_text(const BidRequest& request) {
+  switch (request.target) {
+    case BidTarget::yield:
+      return fmt::format("loss-adjusted yield {}% BEY", percent(request.value));
+    case BidTarget::spread:
+      return fmt::format("loss-adjusted Z-spread {} bp", short_number(1e4 * request.value));
+    case BidTarget::price:
+      return fmt::format("clean price {}", detail::fixed_or_dash(request.value, kPriceDecimals));
+  }
+  return "unknown";
+}
+
+bool shifted(const YieldCurve& curve) {
+  return curve.parallel_shift_bp != 0 || !curve.key_rate_shifts.empty();
+}
+
+// "+25 bp parallel; key rates 2y +10 bp, 10y -5 bp".
+std::string shift_text(const YieldCurve& curve) {
+  std::string out;
+  if (curve.parallel_shift_bp != 0)
+    out = fmt::format("{} bp parallel", short_number(curve.parallel_shift_bp, true));
+  if (!curve.key_rate_shifts.empty()) {
+    out += out.empty() ? "key rates " : "; key rates ";
+    bool first = true;
+    for (const auto& [years, bp] : curve.key_rate_shifts) {
+      out += fmt::format("{}{}y {} bp", first ? "" : ", ", short_number(years),
+                         short_number(bp, true));
+      first = false;
+    }
+  }
+  return out;
+}
+
+std::string curve_section(const YieldCurve& curve) {
+  detail::TextTable table{{}, {Align::left, Align::left}, {}};
+  table.rows.push_back({"source", detail::display_text(curve.source, 200)});
+  table.rows.push_back({"as of", detail::iso_date(curve.as_of)});
+  if (!curve.description.empty())
+    table.rows.push_back({"description", detail::display_text(curve.description, 200)});
+  if (curve.flat) {
+    table.rows.push_back(
+        {"rates", fmt::format("flat {}% (continuous zero rate, Actual/365 Fixed)",
+                              percent(curve.flat_rate))});
+  } else {
+    std::string quotes = detail::count_of(curve.quotes.size(), "quote", "quotes");
+    if (!curve.quotes.empty()) {
+      const auto [shortest, longest] = std::minmax_element(
+          curve.quotes.begin(), curve.quotes.end(),
+          [](const CurveQuote& a, const CurveQuote& b) { return a.months < b.months; });
+      quotes += fmt::format(", {} to {}", detail::display_text(shortest->tenor, kValueWidth),
+                            detail::display_text(longest->tenor, kValueWidth));
+    }
+    table.rows.push_back({"rates", std::move(quotes)});
+  }
+  if (shifted(curve)) table.rows.push_back({"shift", shift_text(curve)});
+  return detail::render(table);
+}
+
+std::string assumptions_section(const Assumptions& a) {
+  detail::TextTable table{{}, {Align::left, Align::left}, {}};
+  table.rows = {
+      {"prepayment (CPR)", prepay_text(a.prepay)},
+      {"default (CDR)", default_text(a.default_rate)},
+      {"loss severity (% of defaulted balance)", severity_text(a.severity)},
+      {"liquidation lag", detail::count_of(static_cast<std::size_t>(std::max(a.lag_months, 0)),
+                                           "month after default", "months after default")},
+      {"advancing", std::string(to_string(a.advancing))},
+      {"delinquent loans default in month 1",
+       a.delinquent_default ? "yes (90+ days delinquent or in foreclosure at cut-off)"
+                            : "no (they follow the curves)"},
+  };
+  return detail::render(table);
+}
+
+double accrued_pct(const BidResult& r) {
+  return r.cutoff_balance > 0 ? 100 * r.accrued / r.cutoff_balance
+                              : std::numeric_limits<double>::quiet_NaN();
+}
+
+std::string bid_section(const BidResult& r) {
+  detail::TextTable table{{}, {Align::left, Align::right, Align::right, Align::left}, {}};
+  auto price = [](double x) { return detail::fixed_or_dash(x, kPriceDecimals); };
+  table.rows = {
+      {"clean price", price(r.clean_price), detail::dollars(r.clean_value),
+       "the bid, before accrued interest"},
+      {"accrued interest", price(accrued_pct(r)), detail::dollars(r.accrued),
+       "cut-off to settlement, 30/360, at the net coupon"},
+      {"dirty price", price(r.dirty_price), detail::dollars(r.dirty_value),
+       "what the buyer pays at settlement"},
+  };
+  return detail::render(table);
+}
+
+std::string views_section(const BidResult& r) {
+  detail::TextTable table{
+      {"", "loss-adjusted", "no-loss"}, {Align::left, Align::right, Align::right}, {}};
+  const PoolView& la = r.loss_adjusted;
+  const PoolView& nl = r.no_loss;
+  auto years = [](double x) { return detail::fixed_or_dash(x, kYearsDecimals); };
+  table.rows = {
+      {"cash-flow yield, monthly compounding (%)", percent(la.cfy), percent(nl.cfy)},
+      {"bond-equivalent yield (%)", percent(la.bey), percent(nl.bey)},
+      {"Z-spread (bp)", basis_points(la.z_spread), basis_points(nl.z_spread)},
+      {"par yield at WAL (%)", percent(la.par_yield_at_wal), percent(nl.par_yield_at_wal)},
+      {"spread at WAL (bp)", basis_points(la.spread_at_wal), basis_points(nl.spread_at_wal)},
+      {"WAL (years)", years(la.wal_years), years(nl.wal_years)},
+      {"modified duration", years(la.modified_duration), years(nl.modified_duration)},
+  };
+  return detail::render(table);
+}
+
+std::string credit_section(const BidResult& r) {
+  detail::TextTable table{{}, {Align::left, Align::right, Align::left}, {}};
+  table.rows = {
+      {"credit cost", detail::fixed_or_dash(r.credit_cost_bp, kBpDecimals) + " bp",
+       "no-loss Z-spread less loss-adjusted"},
+      {"expected lifetime loss", detail::dollars(r.expected_loss),
+       fmt::format("{}% of cut-off UPB", detail::fixed_or_dash(r.expected_loss_pct,
+                                                               kLossPctDecimals))},
+  };
+  return detail::render(table);
+}
+
+std::string risk_section(const BidResult& r, const BidRequest& request) {
+  detail::TextTable table{{}, {Align::left, Align::right, Align::left}, {}};
+  auto years = [](double x) { return detail::fixed_or_dash(x, kYearsDecimals); };
+  table.rows = {
+      {"effective duration", years(r.effective_duration), ""},
+      {"effective convexity", years(r.effective_convexity), ""},
+      {"DV01", detail::dollars(r.dv01), "per 1 bp fall in the curve"},
+      {"ARM loans on coupon paths", count_text(r.arm_loans),
+       "coupons from the curve's index forwards"},
+  };
+  return fmt::format("risk (curve moved up and down {} bp, cash flows re-projected, Z-spread "
+                     "held)\n{}",
+                     short_number(request.shock_bp), detail::render(table));
+}
+
+std::string rejects_table(const TapeRead& tape) {
+  detail::TextTable table{{"row", "loan id", "column", "value", "reason"},
+                          {Align::right, Align::left, Align::left, Align::left, Align::left},
+                          {}};
+  for (const RowProblem& p : tape.problems) {
+    if (!p.reject) continue;
+    table.rows.push_back({count_text(p.row),
+                          detail::display_text(p.loan_id, kLoanIdWidth, "(blank)"),
+                          detail::display_text(p.column, kValueWidth, "(whole row)"),
+                          detail::display_text(p.value, kValueWidth, "(blank)"),
+                          detail::display_text(p.reason, 400)});
+  }
+  return detail::render(table);
+}
+
+// The pricing cut-off; the tape's, when it has one, must be the same day.
+Date cutoff_of(const TapeRead& tape, const BidRequest& request) {
+  const Date cutoff = request.settlement.cutoff;
+  if (!cutoff.ok())
+    throw std::invalid_argument("price report: the settlement has no valid cut-off date");
+  if (tape.cutoff && *tape.cutoff != cutoff)
+    throw std::invalid_argument(fmt::format(
+        "price report: the tape's cut-off {} differs from the settlement's cut-off {}",
+        detail::iso_date(*tape.cutoff), detail::iso_date(cutoff)));
+  return cutoff;
+}
+
+// ---- JSON pieces --------------------------------------------------------------------------------
+
+Json curve_json(const YieldCurve& curve) {
+  Json quotes = Json::array();
+  for (const CurveQuote& q : curve.quotes)
+    quotes.push_back(Json{{"kind", std::string(kind_name(q.kind))},
+                          {"tenor", q.tenor},
+                          {"rate", number_or_null(q.rate)}});
+  Json key_rates = Json::array();
+  for (const auto& [years, bp] : curve.key_rate_shifts)
+    key_rates.push_back(Json{{"years", number_or_null(years)}, {"bp", number_or_null(bp)}});
+  return Json{
+      {"source", curve.source},
+      {"as_of", detail::iso_date(curve.as_of)},
+      {"description", curve.description},
+      {"flat", curve.flat},
+      {"flat_rate", curve.flat ? number_or_null(curve.flat_rate) : Json(nullptr)},
+      {"quotes", std::move(quotes)},
+      {"parallel_shift_bp", number_or_null(curve.parallel_shift_bp)},
+      {"key_rate_shifts", std::move(key_rates)},
+  };
+}
+
+Json assumptions_json(const Assumptions& a) {
+  return Json{
+      {"prepay", prepay_text(a.prepay)},
+      {"default", default_text(a.default_rate)},
+      {"severity", severity_text(a.severity)},
+      {"lag_months", a.lag_months},
+      {"advancing", std::string(to_string(a.advancing))},
+      {"delinquent_default", a.delinquent_default},
+  };
+}
+
+Json view_json(const PoolView& v) {
+  return Json{
+      {"cash_flow_yield", number_or_null(v.cfy)},
+      {"bey", number_or_null(v.bey)},
+      {"z_spread", number_or_null(v.z_spread)},
+      {"par_yield_at_wal", number_or_null(v.par_yield_at_wal)},
+      {"spread_at_wal", number_or_null(v.spread_at_wal)},
+      {"wal_years", number_or_null(v.wal_years)},
+      {"modified_duration", number_or_null(v.modified_duration)},
+  };
+}
+
+Json rejected_json(const TapeRead& tape) {
+  Json rejected = Json::array();
+  for (const RowProblem& p : tape.problems) {
+    if (!p.reject) continue;
+    rejected.push_back(Json{
+        {"row", p.row},
+        {"loan_id", p.loan_id},
+        {"field", p.field ? Json(std::string(field_name(*p.field))) : Json(nullptr)},
+        {"column", p.column},
+        {"value", p.value},
+        {"reason", p.reason},
+    });
+  }
+  return rejected;
+}
+
+// ---- Loans CSV ----------------------------------------------------------------------------------
+
+void check_sizes(const LoanArrays& loans, const LoanFlows& f) {
+  const std::size_t n = loans.size();
+  if (f.present_value.empty())
+    throw std::invalid_argument(
+        "loan values: no present values; price the pool with loan values requested");
+  for (const std::vector<double>* v : {&f.present_value, &f.loss, &f.wal_years}) {
+    if (v->size() != n)
+      throw std::invalid_argument(fmt::format(
+          "loan values: a column of the loan flows has {} loans, the tape {}", v->size(), n));
+  }
+  if (loans.loan_id.size() != n || loans.row.size() != n || loans.seller.size() != n ||
+      loans.note_rate.size() != n)
+    throw std::invalid_argument("loan values: tape columns of different lengths");
+}
+
+std::vector<std::string> csv_seller_names(const LoanArrays& loans) {
+  std::vector<std::string> names;
+  names.reserve(loans.seller_names.size());
+  for (const std::string& name : loans.seller_names) {
+    Buffer cell;
+    put_csv_text(cell, name);
+    names.push_back(fmt::to_string(cell));
+  }
+  return names;
+}
+
+// Loans [first, last) appended to `out`, one line each.
+void put_value_rows(Buffer& out, const LoanArrays& loans, const LoanFlows& f,
+                    const std::vector<std::string>& sellers, std::size_t first,
+                    std::size_t last) {
+  for (std::size_t i = first; i < last; ++i) {
+    const double balance = loans.current_balance[i];
+    const double value = f.present_value[i];
+    const double loss = f.loss[i];
+    put_csv_text(out, loans.loan_id[i]);
+    fmt::format_to(std::back_inserter(out), FMT_COMPILE(",{},"), loans.row[i]);
+    const std::size_t s = loans.seller[i];
+    if (s < sellers.size()) out.append(sellers[s]);
+    out.push_back(',');
+    put_money(out, balance);
+    out.push_back(',');
+    put_fixed(out, 100 * loans.note_rate[i], kCsvRateDecimals);
+    out.push_back(',');
+    put_money(out, value);
+    out.push_back(',');
+    put_fixed(out, 100 * value / balance, kCsvPriceDecimals);  // empty cell if balance is 0
+    out.push_back(',');
+    put_fixed(out, f.wal_years[i], kCsvWalDecimals);
+    out.push_back(',');
+    put_money(out, loss);
+    out.push_back(',');
+    put_fixed(out, 100 * loss / balance, kCsvLossPctDecimals);
+    out.push_back('\n');
+  }
+}
+
+}  // namespace
+
+std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidRequest& request,
+                       const BidResult& result) {
+  const Date cutoff = cutoff_of(tape, request);
+  const int delay = request.settlement.delay_days;
+  std::string out = fmt::format("poolbid price: {}\n", detail::display_text(tape.file, 200));
+  out += fmt::format("loans priced: {} (UPB {}), net coupon {}%\n",
+                     count_text(tape.rows_accepted()), detail::dollars(result.cutoff_balance),
+                     percent(result.net_coupon));
+  out += fmt::format("cut-off date: {}\nsettlement date: {}\n", detail::iso_date(cutoff),
+                     detail::iso_date(request.settlement.settle));
+  out += fmt::format("payment delay: {} (month 1 paid {})\n",
+                     detail::count_of(static_cast<std::size_t>(std::max(delay, 0)), "day",
+                                      "days"),
+                     detail::iso_date(payment_date(cutoff, 1, delay)));
+
+  out += "\ncurve\n";
+  out += curve_section(curve);
+  out += "\nassumptions (loss-adjusted view; the no-loss view turns defaults off)\n";
+  out += assumptions_section(request.assumptions);
+  out += fmt::format("\ntarget: {}\n", target_text(request));
+
+  out += "\nbid (price in % of cut-off UPB, value in dollars)\n";
+  out += bid_section(result);
+  out += "\nat the bid\n";
+  out += views_section(result);
+  out += "\ncredit\n";
+  out += credit_section(result);
+  out += '\n';
+  out += risk_section(result, request);
+
+  out += '\n';
+  if (tape.rows_rejected == 0) {
+    out += fmt::format("rejected rows: none; all {} read are priced.\n",
+                       detail::count_of(tape.rows_read, "row", "rows"));
+  } else {
+    out += fmt::format("rejected rows: {} (UPB {}) not priced:\n",
+                       detail::count_of(tape.rows_rejected, "row rejected", "rows rejected"),
+                       detail::dollars(tape.upb_rejected));
+    out += rejects_table(tape);
+  }
+  if (tape.rows_with_warnings > 0)
+    out += fmt::format("{} with warnings {} priced as read; `poolbid check` lists the warnings.\n",
+                       detail::count_of(tape.rows_with_warnings, "accepted row", "accepted rows"),
+                       tape.rows_with_warnings == 1 ? "is" : "are");
+  out += fmt::format("\n{}\n", caution_text());
+  return out;
+}
+
+std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidRequest& request,
+                       const BidResult& result) {
+  const Date cutoff = cutoff_of(tape, request);
+  const BidResult& r = result;
+  Json document = {
+      {"file", tape.file},
+      {"cutoff_date", detail::iso_date(cutoff)},
+      {"settlement_date", detail::iso_date(request.settlement.settle)},
+      {"payment_delay_days", request.settlement.delay_days},
+      {"curve", curve_json(curve)},
+      {"assumptions", assumptions_json(request.assumptions)},
+      {"target", Json{{"kind", std::string(target_name(request.target))},
+                      {"value", number_or_null(request.value)}}},
+      {"bid", Json{{"clean_price", number_or_null(r.clean_price)},
+                   {"dirty_price", number_or_null(r.dirty_price)},
+                   {"accrued_pct", number_or_null(accrued_pct(r))},
+                   {"accrued", number_or_null(r.accrued)},
+                   {"clean_value", number_or_null(r.clean_value)},
+                   {"dirty_value", number_or_null(r.dirty_value)}}},
+      {"loss_adjusted", view_json(r.loss_adjusted)},
+      {"no_loss", view_json(r.no_loss)},
+      {"credit", Json{{"credit_cost_bp", number_or_null(r.credit_cost_bp)},
+                      {"expected_loss", number_or_null(r.expected_loss)},
+                      {"expected_loss_pct", number_or_null(r.expected_loss_pct)}}},
+      {"risk", Json{{"effective_duration", number_or_null(r.effective_duration)},
+                    {"effective_convexity", number_or_null(r.effective_convexity)},
+                    {"dv01", number_or_null(r.dv01)},
+                    {"shock_bp", number_or_null(request.shock_bp)},
+                    {"arm_loans", r.arm_loans}}},
+      {"loans_priced", Json{{"loans", tape.rows_accepted()},
+                            {"cutoff_balance", number_or_null(r.cutoff_balance)},
+                            {"net_coupon", number_or_null(r.net_coupon)},
+                            {"rows_read", tape.rows_read},
+                            {"rows_rejected", tape.rows_rejected},
+                            {"upb_rejected", number_or_null(tape.upb_rejected)}}},
+      {"rejected", rejected_json(tape)},
+      {"caution", std::string(caution_text())},
+  };
+  return detail::dump_json(document);
+}
+
+std::string loan_values_csv(const LoanArrays& loans, const BidResult& result) {
+  const LoanFlows& flows = result.flows.loans;
+  check_sizes(loans, flows);
+  Buffer out;
+  out.append(kLoanValuesCsvHeader);
+  out.push_back('\n');
+  put_value_rows(out, loans, flows, csv_seller_names(loans), 0, loans.size());
+  return fmt::to_string(out);
+}
+
+void write_loan_values_csv(std::ostream& stream, const LoanArrays& loans,
+                           const BidResult& result) {
+  const LoanFlows& flows = result.flows.loans;
+  check_sizes(loans, flows);
+  const std::vector<std::string> sellers = csv_seller_names(loans);
+  Buffer out;
+  out.append(kLoanValuesCsvHeader);
+  out.push_back('\n');
+  constexpr std::size_t kRowsPerPiece = 4096;
+  for (std::size_t first = 0; first < loans.size(); first += kRowsPerPiece) {
+    put_value_rows(out, loans, flows, sellers, first,
+                   std::min(first + kRowsPerPiece, loans.size()));
+    if (out.size() >= kStreamChunkBytes) {
+      stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+      out.clear();
+      if (!stream) return;  // the caller sees the stream's state
+    }
+  }
+  stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+}
+
+}  // namespace poolbid
