@@ -202,6 +202,7 @@ struct CashflowArgs {
   AssumptionArgs assumption;
   std::string csv;    // "" = none; "-" = standard output
   std::string loans;  // "" = none; "-" = standard output (only beside --csv FILE)
+  std::string curve;  // "" = none: ARMs keep their note rate
   unsigned threads = 0;
   int delay_days = 17;  // illustrative (DESIGN.md section 5): cash paid on the 18th
 
@@ -213,6 +214,9 @@ struct CashflowArgs {
     cmd.add_option("--csv", csv, "write the monthly pool table as CSV to FILE ('-': stdout)")
         ->excludes("--json");
     cmd.add_option("--loans", loans, "write per-loan lifetime totals as CSV to FILE");
+    cmd.add_option("--curve", curve,
+                   "yield curve whose index forwards reset the ARMs: a curve file, or a flat "
+                   "rate in percent (without it ARMs keep their note rate)");
     add_threads_and_delay(cmd, threads, delay_days);
   }
 };
@@ -262,6 +266,41 @@ struct PriceArgs {
   }
 };
 
+// An option value that is unusable (exit 5).
+[[noreturn]] void bad_option(const std::string& option, const std::string& value,
+                             const std::string& message) {
+  throw TapeError(ErrorKind::bad_option, "", 0, option, value,
+                  fmt::format("{} '{}': {}", option, value, message));
+}
+
+// `--curve`: a curve file, read before the tape so a bad curve stops the command at once; or a
+// flat rate in percent ("4.25"), dated at the tape's cut-off.
+struct CurveOption {
+  std::string text;
+  std::optional<YieldCurve> file;
+
+  bool flat() const {
+    double percent = 0;
+    const char* end = text.data() + text.size();
+    const auto [ptr, ec] = std::from_chars(text.data(), end, percent);
+    return !text.empty() && ec == std::errc() && ptr == end;
+  }
+  void load() {
+    if (!flat()) {
+      file = load_yield_curve(text);
+      return;
+    }
+    const double percent = std::strtod(text.c_str(), nullptr);
+    if (!(percent > -5 && percent < 30))
+      bad_option("--curve", text, "a flat rate wants a percent from -5 to 30");
+  }
+  std::string file_path() const { return flat() ? std::string() : text; }
+  // "4.1" is read as "4.1e-2", so the rate is the double nearest 0.041 (not 4.1 / 100).
+  YieldCurve curve(Date cutoff) const {
+    return flat() ? flat_yield_curve(std::strtod((text + "e-2").c_str(), nullptr), cutoff) : *file;
+  }
+};
+
 // An output path that would overwrite one of the inputs, or two outputs on one path.
 struct UsageError : std::runtime_error {
   using std::runtime_error::runtime_error;
@@ -283,7 +322,8 @@ void check_outputs(const CashflowArgs& args) {
   const std::vector<std::pair<std::string, std::string>> inputs = {
       {"the tape", args.tape.tape},
       {"the column map", args.tape.map},
-      {"the assumptions file", args.assumption.file}};
+      {"the assumptions file", args.assumption.file},
+      {"the curve file", CurveOption{args.curve, std::nullopt}.file_path()}};
   for (const auto& [option, path] : {std::pair{"--csv", args.csv}, {"--loans", args.loans}}) {
     if (path.empty() || path == "-") continue;
     for (const auto& [what, input] : inputs)
@@ -311,12 +351,20 @@ int run_cashflows(const CashflowArgs& args) {
   check_outputs(args);
   const ReadOptions read_options = args.tape.read_options();
   const Assumptions assumptions = args.assumption.assumptions();
+  CurveOption curve_option{args.curve, std::nullopt};
+  if (!args.curve.empty()) curve_option.load();
   const TapeRead tape = read_tape(args.tape.tape, read_options);
   const Date cutoff = require_cutoff(tape, "cash flows");
 
   ProjectionOptions options;
   options.threads = args.threads;
   options.loan_totals = !args.loans.empty();
+  std::optional<CouponPaths> coupons;
+  if (!args.curve.empty()) {
+    coupons = arm_coupon_paths(tape.loans, curve_option.curve(cutoff), cutoff,
+                               projection_horizon(tape.loans, assumptions));
+    options.coupons = &*coupons;
+  }
   const Projection projection = project_pool(tape.loans, assumptions, options);
 
   std::vector<OutputFile> files;
@@ -348,45 +396,10 @@ int run_cashflows(const CashflowArgs& args) {
   return tape.rows_rejected > 0 ? kRowsRejected : kOk;
 }
 
-// An option value that is unusable (exit 5).
-[[noreturn]] void bad_option(const std::string& option, const std::string& value,
-                             const std::string& message) {
-  throw TapeError(ErrorKind::bad_option, "", 0, option, value,
-                  fmt::format("{} '{}': {}", option, value, message));
-}
-
 std::string iso_text(Date d) {
   return fmt::format("{:04d}-{:02d}-{:02d}", static_cast<int>(d.year()),
                      static_cast<unsigned>(d.month()), static_cast<unsigned>(d.day()));
 }
-
-// `--curve`: a curve file, read before the tape so a bad curve stops the command at once; or a
-// flat rate in percent ("4.25"), dated at the tape's cut-off.
-struct CurveOption {
-  std::string text;
-  std::optional<YieldCurve> file;
-
-  bool flat() const {
-    double percent = 0;
-    const char* end = text.data() + text.size();
-    const auto [ptr, ec] = std::from_chars(text.data(), end, percent);
-    return !text.empty() && ec == std::errc() && ptr == end;
-  }
-  void load() {
-    if (!flat()) {
-      file = load_yield_curve(text);
-      return;
-    }
-    const double percent = std::strtod(text.c_str(), nullptr);
-    if (!(percent > -5 && percent < 30))
-      bad_option("--curve", text, "a flat rate wants a percent from -5 to 30");
-  }
-  std::string file_path() const { return flat() ? std::string() : text; }
-  // "4.1" is read as "4.1e-2", so the rate is the double nearest 0.041 (not 4.1 / 100).
-  YieldCurve curve(Date cutoff) const {
-    return flat() ? flat_yield_curve(std::strtod((text + "e-2").c_str(), nullptr), cutoff) : *file;
-  }
-};
 
 // `poolbid price`: read, project, value, solve, write. Rejected rows are listed in the report and
 // the exit code is 3; a target no price can meet is 7.

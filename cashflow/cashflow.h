@@ -47,6 +47,14 @@ CouponPaths coupon_changes(std::vector<std::uint32_t> loans, int months,
 // month-1 entry at the note rate). Throws std::invalid_argument naming the loan and the index if
 // an ARM's index is not in `index.names`.
 CouponPaths arm_coupon_paths(const LoanArrays& loans, const IndexPaths& index);
+// The same with index rates projected from a yield curve (curves' index_paths) for every index the
+// tape's ARMs name, over `months` projection months from `cutoff`. Throws CurveError for an index
+// the curve does not define.
+CouponPaths arm_coupon_paths(const LoanArrays& loans, const YieldCurve& curve, Date cutoff,
+                             int months);
+// Months a projection of these loans can run: the longest remaining term plus the liquidation lag,
+// plus one. Coupon paths and discount factors that cover this many months cover every loan.
+int projection_horizon(const LoanArrays& loans, const Assumptions& assumptions);
 
 struct ProjectionOptions {
   // Worker threads; 0 = every core. Results do not depend on it.

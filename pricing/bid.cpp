@@ -13,41 +13,21 @@
 namespace poolbid {
 namespace {
 
-// The last month any loan can pay (its remaining term, or an earlier balloon) plus the
-// liquidation lag: the grid and the coupon paths run this far.
-int horizon_months(const LoanArrays& loans, const Assumptions& assumptions) {
-  int longest = 0;
-  for (std::size_t i = 0; i < loans.size(); ++i)
-    longest = std::max(longest, loans.remaining_term[i]);
-  return longest + std::max(assumptions.lag_months, 0) + 1;
-}
-
-// Index names the tape's ARMs read, in arm_index order.
-std::vector<std::string> arm_index_names(const LoanArrays& loans) {
-  std::vector<bool> used(loans.arm_index_names.size(), false);
-  for (std::size_t i = 0; i < loans.size(); ++i)
-    if (loans.amortization[i] == Amortization::arm) used[loans.arm_index[i]] = true;
-  std::vector<std::string> names;
-  for (std::size_t k = 1; k < used.size(); ++k)
-    if (used[k]) names.push_back(loans.arm_index_names[k]);
-  return names;
-}
-
 std::size_t count_arms(const LoanArrays& loans) {
   return static_cast<std::size_t>(
       std::count(loans.amortization.begin(), loans.amortization.end(), Amortization::arm));
 }
 
-// Projects the pool on one curve: ARMs follow that curve's index forwards.
-Projection project_on(const LoanArrays& loans, const YieldCurve& curve, const Assumptions& a,
-                      const BidRequest& request, int horizon, bool loan_totals,
-                      std::span<const double> discount = {}) {
-  std::optional<CouponPaths> coupons;
-  if (count_arms(loans) > 0) {
-    const std::vector<std::string> names = arm_index_names(loans);
-    coupons = arm_coupon_paths(
-        loans, index_paths(curve, names, request.settlement.cutoff, horizon));
-  }
+// ARM coupon paths on one curve; none when the tape has no ARM.
+std::optional<CouponPaths> coupons_on(const LoanArrays& loans, const YieldCurve& curve,
+                                      const BidRequest& request, int horizon) {
+  if (count_arms(loans) == 0) return std::nullopt;
+  return arm_coupon_paths(loans, curve, request.settlement.cutoff, horizon);
+}
+
+Projection project_with(const LoanArrays& loans, const std::optional<CouponPaths>& coupons,
+                        const Assumptions& a, const BidRequest& request, bool loan_totals,
+                        std::span<const double> discount = {}) {
   ProjectionOptions options;
   options.threads = request.threads;
   options.loan_totals = loan_totals;
@@ -113,7 +93,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   result.net_coupon = net / balance;
   result.arm_loans = count_arms(loans);
 
-  const int horizon = horizon_months(loans, request.assumptions);
+  const int horizon = projection_horizon(loans, request.assumptions);
   const PaymentGrid grid = payment_grid(curve, settlement, horizon);
   result.accrued =
       accrued_interest(balance, result.net_coupon, settlement.cutoff, settlement.settle);
@@ -128,8 +108,9 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
     return std::span<const double>(loan_discount);
   };
   const bool values_now = request.loan_values && request.target == BidTarget::yield;
-  result.flows = project_on(loans, curve, request.assumptions, request, horizon, values_now,
-                            values_now ? discount_at(cfy_from_bey(request.value))
+  const std::optional<CouponPaths> coupons = coupons_on(loans, curve, request, horizon);
+  result.flows = project_with(loans, coupons, request.assumptions, request, values_now,
+                              values_now ? discount_at(cfy_from_bey(request.value))
                                        : std::span<const double>{});
   const PoolFlows& pool = result.flows.pool;
   const std::span<const double> cash(pool.cash_flow);
@@ -155,7 +136,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   result.clean_price = result.clean_value / balance * 100;
 
   const Assumptions no_loss = without_defaults(request.assumptions);
-  result.no_loss_flows = project_on(loans, curve, no_loss, request, horizon, false).pool;
+  result.no_loss_flows = project_with(loans, coupons, no_loss, request, false).pool;
   result.loss_adjusted = read_view(pool, grid, curve, pv, balance, "loss-adjusted");
   result.no_loss = read_view(result.no_loss_flows, grid, curve, pv, balance, "no-loss");
   result.credit_cost_bp = (result.no_loss.z_spread - result.loss_adjusted.z_spread) * 1e4;
@@ -170,7 +151,8 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
     const YieldCurve moved = shift_curve(curve, side == 0 ? request.shock_bp : -request.shock_bp);
     const PaymentGrid moved_grid = payment_grid(moved, settlement, horizon);
     if (result.arm_loans > 0) {
-      const Projection p = project_on(loans, moved, request.assumptions, request, horizon, false);
+      const Projection p = project_with(loans, coupons_on(loans, moved, request, horizon),
+                                        request.assumptions, request, false);
       shocked_pv[side] = pv_at_spread(p.pool.cash_flow, moved_grid, result.loss_adjusted.z_spread);
     } else {
       shocked_pv[side] = pv_at_spread(cash, moved_grid, result.loss_adjusted.z_spread);
@@ -183,8 +165,8 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   result.dv01 = (down - up) / (2 * request.shock_bp);
 
   if (request.loan_values && !values_now)
-    result.flows = project_on(loans, curve, request.assumptions, request, horizon, true,
-                              discount_at(result.loss_adjusted.cfy));
+    result.flows = project_with(loans, coupons, request.assumptions, request, true,
+                                discount_at(result.loss_adjusted.cfy));
   return result;
 }
 
