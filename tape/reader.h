@@ -177,43 +177,49 @@ enum RowSource : std::uint8_t {
 constexpr std::uint64_t bit(Field f) { return std::uint64_t{1} << static_cast<unsigned>(f); }
 static_assert(kFieldCount <= 64, "one bit per field in Staging::given");
 
-// Calls visit(vector, missing value) for every per-loan vector of LoanArrays (not the name
-// tables), so adding, keeping and dropping rows cannot miss one.
+// Calls visit(&LoanArrays::member, missing value) for every per-loan vector of LoanArrays (not
+// the name tables), so adding, keeping, dropping and selecting rows cannot miss one.
+template <typename Visit>
+void for_each_loan_member(Visit&& visit) {
+  const double nan = std::numeric_limits<double>::quiet_NaN();
+  visit(&LoanArrays::loan_id, std::string());
+  visit(&LoanArrays::row, std::uint32_t{0});
+  visit(&LoanArrays::seller, std::uint16_t{0});
+  visit(&LoanArrays::current_balance, nan);
+  visit(&LoanArrays::original_balance, nan);
+  visit(&LoanArrays::note_rate, nan);
+  visit(&LoanArrays::servicing_fee, nan);
+  visit(&LoanArrays::original_term, std::int32_t{0});
+  visit(&LoanArrays::remaining_term, std::int32_t{0});
+  visit(&LoanArrays::age, std::int32_t{0});
+  visit(&LoanArrays::amortization, Amortization::fixed);
+  visit(&LoanArrays::io_months, std::int32_t{0});
+  visit(&LoanArrays::balloon_month, std::int32_t{0});
+  visit(&LoanArrays::arm_index, std::uint8_t{0});
+  visit(&LoanArrays::arm_margin, nan);
+  visit(&LoanArrays::arm_periodic_cap, nan);
+  visit(&LoanArrays::arm_lifetime_cap, nan);
+  visit(&LoanArrays::arm_floor, nan);
+  visit(&LoanArrays::arm_first_reset, std::int32_t{0});
+  visit(&LoanArrays::arm_reset_period, std::int32_t{0});
+  visit(&LoanArrays::credit_score, nan);
+  visit(&LoanArrays::original_ltv, nan);
+  visit(&LoanArrays::combined_ltv, nan);
+  visit(&LoanArrays::dti, nan);
+  visit(&LoanArrays::property_value, nan);
+  visit(&LoanArrays::property_value_date, kNoDate);
+  visit(&LoanArrays::occupancy, Occupancy::unknown);
+  visit(&LoanArrays::property_type, PropertyType::unknown);
+  visit(&LoanArrays::purpose, Purpose::unknown);
+  visit(&LoanArrays::documentation, Documentation::unknown);
+  visit(&LoanArrays::state, std::uint8_t{0});
+  visit(&LoanArrays::delinquency, Delinquency::unknown);
+}
+
+// Calls visit(vector, missing value) for every per-loan vector of `l`.
 template <typename Visit>
 void for_each_loan_vector(LoanArrays& l, Visit&& visit) {
-  const double nan = std::numeric_limits<double>::quiet_NaN();
-  visit(l.loan_id, std::string());
-  visit(l.row, std::uint32_t{0});
-  visit(l.seller, std::uint16_t{0});
-  visit(l.current_balance, nan);
-  visit(l.original_balance, nan);
-  visit(l.note_rate, nan);
-  visit(l.servicing_fee, nan);
-  visit(l.original_term, std::int32_t{0});
-  visit(l.remaining_term, std::int32_t{0});
-  visit(l.age, std::int32_t{0});
-  visit(l.amortization, Amortization::fixed);
-  visit(l.io_months, std::int32_t{0});
-  visit(l.balloon_month, std::int32_t{0});
-  visit(l.arm_index, std::uint8_t{0});
-  visit(l.arm_margin, nan);
-  visit(l.arm_periodic_cap, nan);
-  visit(l.arm_lifetime_cap, nan);
-  visit(l.arm_floor, nan);
-  visit(l.arm_first_reset, std::int32_t{0});
-  visit(l.arm_reset_period, std::int32_t{0});
-  visit(l.credit_score, nan);
-  visit(l.original_ltv, nan);
-  visit(l.combined_ltv, nan);
-  visit(l.dti, nan);
-  visit(l.property_value, nan);
-  visit(l.property_value_date, kNoDate);
-  visit(l.occupancy, Occupancy::unknown);
-  visit(l.property_type, PropertyType::unknown);
-  visit(l.purpose, Purpose::unknown);
-  visit(l.documentation, Documentation::unknown);
-  visit(l.state, std::uint8_t{0});
-  visit(l.delinquency, Delinquency::unknown);
+  for_each_loan_member([&](auto member, const auto& missing) { visit(l.*member, missing); });
 }
 
 // ---- Plan ---------------------------------------------------------------------------------------

@@ -10,6 +10,7 @@
 #include <iosfwd>
 #include <map>
 #include <optional>
+#include <span>
 #include <stdexcept>
 #include <string>
 #include <string_view>
@@ -117,6 +118,10 @@ struct LoanArrays {
 
   std::size_t size() const { return current_balance.size(); }
 };
+
+// The loans at `indexes` (each < loans.size(); any order, repeats allowed), in that order, with
+// the name tables copied whole so seller and ARM index numbers keep their meaning.
+LoanArrays select_loans(const LoanArrays& loans, std::span<const std::uint32_t> indexes);
 
 // ---- Column map ---------------------------------------------------------------------------------
 // A seller's header names, units and spellings, read from JSON (format in DEVELOPERS.md):
