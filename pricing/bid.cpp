@@ -144,19 +144,44 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   result.expected_loss_pct = result.expected_loss / balance * 100;
 
   // Effective duration and convexity: the curve moved by +/- the shock, the loss-adjusted flows
-  // re-projected where they read the curve (ARM coupons), the Z-spread held.
+  // re-projected where they read the curve, the Z-spread held. Only ARM coupons read the curve,
+  // so only the ARMs are re-projected and swapped into the pool's cash:
+  // cash(moved) = cash - ARM cash(curve) + ARM cash(moved).
   const double shock = request.shock_bp / 1e4;
+  const std::size_t months = static_cast<std::size_t>(horizon);
+  std::vector<double> steady_cash(cash.begin(), cash.end());  // what the shift leaves alone
+  steady_cash.resize(months, 0.0);
+  LoanArrays arm_subset;
+  const LoanArrays* movers = &loans;  // the loans whose flows read the curve
+  if (result.arm_loans > 0 && result.arm_loans < loans.size()) {
+    std::vector<std::uint32_t> arm_indexes;
+    arm_indexes.reserve(result.arm_loans);
+    for (std::size_t i = 0; i < loans.size(); ++i)
+      if (loans.amortization[i] == Amortization::arm)
+        arm_indexes.push_back(static_cast<std::uint32_t>(i));
+    arm_subset = select_loans(loans, arm_indexes);
+    movers = &arm_subset;
+    const PoolFlows arms_here =
+        project_with(arm_subset, coupons_on(arm_subset, curve, request, horizon),
+                     request.assumptions, request, false)
+            .pool;
+    for (std::size_t t = 0; t < arms_here.cash_flow.size(); ++t)
+      steady_cash[t] -= arms_here.cash_flow[t];
+  } else if (result.arm_loans > 0) {
+    std::fill(steady_cash.begin(), steady_cash.end(), 0.0);  // every loan moves
+  }
   double shocked_pv[2] = {0, 0};
   for (int side = 0; side < 2; ++side) {
     const YieldCurve moved = shift_curve(curve, side == 0 ? request.shock_bp : -request.shock_bp);
     const PaymentGrid moved_grid = payment_grid(moved, settlement, horizon);
+    std::vector<double> moved_cash = steady_cash;
     if (result.arm_loans > 0) {
-      const Projection p = project_with(loans, coupons_on(loans, moved, request, horizon),
-                                        request.assumptions, request, false);
-      shocked_pv[side] = pv_at_spread(p.pool.cash_flow, moved_grid, result.loss_adjusted.z_spread);
-    } else {
-      shocked_pv[side] = pv_at_spread(cash, moved_grid, result.loss_adjusted.z_spread);
+      const PoolFlows p = project_with(*movers, coupons_on(*movers, moved, request, horizon),
+                                       request.assumptions, request, false)
+                              .pool;
+      for (std::size_t t = 0; t < p.cash_flow.size(); ++t) moved_cash[t] += p.cash_flow[t];
     }
+    shocked_pv[side] = pv_at_spread(moved_cash, moved_grid, result.loss_adjusted.z_spread);
   }
   const double base_pv = pv_at_spread(cash, grid, result.loss_adjusted.z_spread);
   const double up = shocked_pv[0], down = shocked_pv[1];

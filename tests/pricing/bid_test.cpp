@@ -198,6 +198,46 @@ TEST(Bid, EffectiveDurationOfFixedFlowsIsTheirSpreadDuration) {
   EXPECT_NEAR(r.dv01, first * 1e-4, 1e-4 * first * 1e-4);
 }
 
+TEST(Bid, MixedPoolRiskEqualsFullReprojection) {
+  // identity: price_pool re-projects only the ARMs on the moved curves; projecting the whole pool
+  // on each moved curve gives the same effective duration and convexity.
+  std::vector<TestLoan> mixed = level_pay_loans();
+  for (int i = 0; i < 4; ++i) {
+    TestLoan t{.id = "A" + std::to_string(i), .upb = 200'000.0 + 10'000.0 * i, .rate = 0.06};
+    t.age = 50 + i;
+    t.remaining = 360 - t.age;
+    t.amortization = Amortization::arm;
+    t.arm_index = "SOFR30A";
+    t.arm_margin = 0.0275;
+    t.arm_periodic_cap = 0.02;
+    t.arm_lifetime_cap = 0.11;
+    t.arm_first_reset = 61;
+    t.arm_reset_period = 12;
+    mixed.push_back(t);
+  }
+  const LoanArrays loans = make_loans(mixed);
+  const YieldCurve curve = flat_yield_curve(0.042, kCutoff);
+  const BidRequest request = yield_request(0.0725, with_defaults());
+  const BidResult r = price_pool(loans, curve, request);
+  EXPECT_EQ(r.arm_loans, 4u);
+
+  const int horizon = projection_horizon(loans, request.assumptions);
+  auto pv_on = [&](const YieldCurve& c) {
+    const CouponPaths coupons = arm_coupon_paths(loans, c, kCutoff, horizon);
+    ProjectionOptions options;
+    options.coupons = &coupons;
+    const Projection p = project_pool(loans, request.assumptions, options);
+    return pv_at_spread(p.pool.cash_flow, payment_grid(c, request.settlement, horizon),
+                        r.loss_adjusted.z_spread);
+  };
+  const double base = pv_on(curve);
+  const double up = pv_on(shift_curve(curve, 25));
+  const double down = pv_on(shift_curve(curve, -25));
+  EXPECT_NEAR(r.effective_duration, (down - up) / (2 * base * 0.0025), 1e-9);
+  EXPECT_NEAR(r.effective_convexity, (up + down - 2 * base) / (base * 0.0025 * 0.0025), 1e-5);
+  EXPECT_NEAR(r.dv01, (down - up) / 50, 1e-6 * r.dv01);
+}
+
 TEST(Bid, ResultsDoNotDependOnThreads) {
   std::vector<TestLoan> many;
   for (int i = 0; i < 9'000; ++i) {
