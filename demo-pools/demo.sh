@@ -1,5 +1,6 @@
 #!/usr/bin/env bash
-# The demo: check, stratify and project both demo sellers' tapes, then show `check` on the bad tape.
+# The demo: check, stratify, project and price both demo sellers' tapes, then show `check` on the
+# bad tape.
 # Usage: demo-pools/demo.sh [path/to/poolbid]   (default: build/poolbid)
 set -euo pipefail
 here="$(cd "$(dirname "$0")" && pwd)"
@@ -25,6 +26,23 @@ say "Brindlecote Home Loans: cash flows at 150% PSA prepayment, 100% SDA default
 say "Sallowmere Funding: the same, but 200% SDA default for the looser underwriting (cut-off from its map)"
 "$poolbid" cashflows "$here/sallowmere-loose.csv" --map "$here/sallowmere.map.json" \
   --prepay psa:150 --default sda:200 --severity 40 --lag 12
+
+# The bid: both pools valued on the same invented swap curve and bid at the same loss-adjusted
+# yield. The tapes carry the same coupons, terms and balances; Sallowmere's looser underwriting is
+# given twice Brindlecote's default curve, so its expected loss and credit cost are higher and its
+# bid lower -- the difference between the two clean prices is the price of that underwriting.
+say "Brindlecote Home Loans: the bid at a 6.50% loss-adjusted yield (150% PSA, 100% SDA, 40% severity)"
+"$poolbid" price "$here/brindlecote-strict.csv" --cutoff 2026-12-01 \
+  --curve "$here/curve-2026-12-01.json" --settle 2026-12-17 \
+  --prepay psa:150 --default sda:100 --severity 40 --lag 12 --target-yield 6.5
+say "Sallowmere Funding: the bid at the same 6.50% yield, with 200% SDA for the looser underwriting"
+"$poolbid" price "$here/sallowmere-loose.csv" --map "$here/sallowmere.map.json" \
+  --curve "$here/curve-2026-12-01.json" --settle 2026-12-17 \
+  --prepay psa:150 --default sda:200 --severity 40 --lag 12 --target-yield 6.5
+say "Sallowmere Funding: the bid at a 250 bp loss-adjusted Z-spread over the invented treasury curve"
+"$poolbid" price "$here/sallowmere-loose.csv" --map "$here/sallowmere.map.json" \
+  --curve "$here/treasury-2026-12-01.json" --settle 2026-12-17 \
+  --prepay psa:150 --default sda:200 --severity 40 --lag 12 --target-spread 250
 
 say "A tape with planted mistakes: every bad row is listed, none dropped (exit code 3)"
 status=0
