@@ -170,10 +170,8 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   } else if (result.arm_loans > 0) {
     std::fill(steady_cash.begin(), steady_cash.end(), 0.0);  // every loan moves
   }
-  double shocked_pv[2] = {0, 0};
-  for (int side = 0; side < 2; ++side) {
-    const YieldCurve moved = shift_curve(curve, side == 0 ? request.shock_bp : -request.shock_bp);
-    const PaymentGrid moved_grid = payment_grid(moved, settlement, horizon);
+  // The pool's value on a moved curve at the bid's Z-spread.
+  auto value_on = [&](const YieldCurve& moved) {
     std::vector<double> moved_cash = steady_cash;
     if (result.arm_loans > 0) {
       const PoolFlows p = project_with(*movers, coupons_on(*movers, moved, request, horizon),
@@ -181,13 +179,26 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
                               .pool;
       for (std::size_t t = 0; t < p.cash_flow.size(); ++t) moved_cash[t] += p.cash_flow[t];
     }
-    shocked_pv[side] = pv_at_spread(moved_cash, moved_grid, result.loss_adjusted.z_spread);
-  }
+    return pv_at_spread(moved_cash, payment_grid(moved, settlement, horizon),
+                        result.loss_adjusted.z_spread);
+  };
   const double base_pv = pv_at_spread(cash, grid, result.loss_adjusted.z_spread);
-  const double up = shocked_pv[0], down = shocked_pv[1];
+  const double up = value_on(shift_curve(curve, request.shock_bp));
+  const double down = value_on(shift_curve(curve, -request.shock_bp));
   result.effective_duration = (down - up) / (2 * base_pv * shock);
   result.effective_convexity = (up + down - 2 * base_pv) / (base_pv * shock * shock);
   result.dv01 = (down - up) / (2 * request.shock_bp);
+
+  // Key-rate durations: the same, with the shock as a triangle at one key tenor at a time.
+  const std::vector<double>& keys = request.key_rate_years;
+  for (std::size_t k = 0; k < keys.size(); ++k) {
+    CurveShift bump{0, keys, std::vector<double>(keys.size(), 0.0)};
+    bump.key_bp[k] = request.shock_bp;
+    const double key_up = value_on(shift_curve(curve, bump));
+    bump.key_bp[k] = -request.shock_bp;
+    const double key_down = value_on(shift_curve(curve, bump));
+    result.key_rate_durations.push_back({keys[k], (key_down - key_up) / (2 * base_pv * shock)});
+  }
 
   if (request.loan_values && !values_now)
     result.flows = project_with(loans, coupons, request.assumptions, request, true,

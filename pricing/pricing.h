@@ -70,6 +70,10 @@ struct BidRequest {
   Settlement settlement;
   Assumptions assumptions;   // the loss-adjusted view; the no-loss view turns defaults off
   double shock_bp = 25;      // effective duration and convexity: curve +/- this, flows re-projected
+  // Key-rate durations at these tenors (years, ascending; empty = none): each tenor's zero rates
+  // moved +/- shock_bp as a triangle falling to zero at the neighbouring tenors (flat before the
+  // first and after the last, so the key-rate durations add up to the effective duration).
+  std::vector<double> key_rate_years = {2, 5, 10, 30};
   unsigned threads = 0;      // 0 = every core; results do not depend on it
   bool loan_values = false;  // value every loan at the pool's loss-adjusted yield
 };
@@ -101,6 +105,11 @@ struct BidResult {
   double effective_duration = 0; // curve +/- shock_bp, flows re-projected, Z-spread held
   double effective_convexity = 0;
   double dv01 = 0;               // dollars per 1 bp fall in the curve
+  struct KeyRateDuration {
+    double years = 0;
+    double duration = 0;
+  };
+  std::vector<KeyRateDuration> key_rate_durations;  // one per BidRequest::key_rate_years
   std::size_t arm_loans = 0;     // loans on coupon paths from the curve's index forwards
   Projection flows;              // loss-adjusted; with loan totals (present_value at the pool's
                                  // cash-flow yield) when BidRequest::loan_values

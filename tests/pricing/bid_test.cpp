@@ -238,6 +238,28 @@ TEST(Bid, MixedPoolRiskEqualsFullReprojection) {
   EXPECT_NEAR(r.dv01, (down - up) / 50, 1e-6 * r.dv01);
 }
 
+TEST(Bid, KeyRateDurationsAddUpToTheEffectiveDuration) {
+  // identity: the key-rate triangles sum to one at every tenor, so the key-rate shifts together
+  // are the parallel shift; to first order the durations add up.
+  const LoanArrays loans = make_loans(level_pay_loans());
+  const YieldCurve curve = flat_yield_curve(0.042, kCutoff);
+  BidRequest request = yield_request(0.0725, with_defaults());
+  request.shock_bp = 1;
+  const BidResult r = price_pool(loans, curve, request);
+  ASSERT_EQ(r.key_rate_durations.size(), 4u);
+  double sum = 0;
+  for (const auto& k : r.key_rate_durations) {
+    EXPECT_GT(k.duration, 0) << k.years;
+    sum += k.duration;
+  }
+  EXPECT_NEAR(sum, r.effective_duration, 1e-6);
+  // Level-pay loans of mostly 30 years: more of the value sits near 5 and 10 years than at 30.
+  EXPECT_GT(r.key_rate_durations[1].duration, r.key_rate_durations[3].duration);
+
+  request.key_rate_years = {};
+  EXPECT_TRUE(price_pool(loans, curve, request).key_rate_durations.empty());
+}
+
 TEST(Bid, ResultsDoNotDependOnThreads) {
   std::vector<TestLoan> many;
   for (int i = 0; i < 9'000; ++i) {
