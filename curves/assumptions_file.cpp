@@ -1,33 +1,25 @@
 // The JSON assumptions file: prepay, default, severity (text forms, a severity percent, or objects
 // with explicit monthly percents), lag_months, advancing, delinquent_default; over a base. A key
 // given twice in one object is an error, not a silent override.
-#include <cerrno>
 #include <cmath>
-#include <cstdio>
-#include <set>
 #include <string>
-#include <system_error>
-#include <vector>
 
 #include <fmt/core.h>
 #include <nlohmann/json.hpp>
 
 #include "curves/curve_forms.h"
+#include "curves/json_duplicates.h"
 
 namespace poolbid {
 namespace {
 
 using detail::CurveKind;
 using detail::Place;
+using detail::shown;
 using nlohmann::json;
 
 constexpr std::string_view kKeys =
     "prepay, default, severity, lag_months, advancing, delinquent_default";
-
-// The value as the user wrote it: a string without its quotes, anything else as JSON.
-std::string shown(const json& value) {
-  return value.is_string() ? value.get<std::string>() : value.dump();
-}
 
 [[noreturn]] void fail(Place place, const json& value, std::string_view message) {
   throw detail::assumption_error(place, shown(value), message);
@@ -123,98 +115,15 @@ int lag_from_json(const json& value, Place place) {
   return static_cast<int>(months);
 }
 
-// A parser callback that refuses a key appearing twice in one object (nlohmann would keep the last
-// silently), naming it by its path: "prepay", "prepay.clock", "a[2].b". Keeps one frame per open
-// object or array; `count` numbers an array's elements, `keys` holds an object's keys so far.
-class DuplicateKeys {
- public:
-  explicit DuplicateKeys(std::string_view source) : source_(source) {}
-
-  bool operator()(int /*depth*/, json::parse_event_t event, json& parsed) {
-    switch (event) {
-      case json::parse_event_t::object_start:
-      case json::parse_event_t::array_start:
-        frames_.push_back({child_path(), event == json::parse_event_t::array_start, 0, "", {}});
-        break;
-      case json::parse_event_t::key: {
-        Frame& f = frames_.back();
-        f.key = parsed.get<std::string>();
-        if (!f.keys.insert(f.key).second)
-          throw detail::assumption_error({source_, joined(f.path, f.key)}, "",
-                                         "duplicate key; each key may appear only once");
-        break;
-      }
-      case json::parse_event_t::object_end:
-      case json::parse_event_t::array_end:
-        frames_.pop_back();
-        element_done();
-        break;
-      case json::parse_event_t::value:
-        element_done();
-        break;
-    }
-    return true;  // keep everything
-  }
-
- private:
-  struct Frame {
-    std::string path;  // "" for the document itself
-    bool array;
-    std::size_t count;  // arrays: elements read so far
-    std::string key;    // objects: the key whose value is being read
-    std::set<std::string> keys;
-  };
-
-  static std::string joined(const std::string& path, const std::string& key) {
-    return path.empty() ? key : path + "." + key;
-  }
-  // The path of the value starting now.
-  std::string child_path() const {
-    if (frames_.empty()) return "";
-    const Frame& f = frames_.back();
-    return f.array ? fmt::format("{}[{}]", f.path, f.count) : joined(f.path, f.key);
-  }
-  void element_done() {
-    if (!frames_.empty() && frames_.back().array) ++frames_.back().count;
-  }
-
-  std::string_view source_;
-  std::vector<Frame> frames_;
-};
-
-// nlohmann's message without its "[json.exception.parse_error.101] " prefix.
-std::string_view plain_message(const char* what) {
-  std::string_view text(what);
-  if (!text.empty() && text.front() == '[') {
-    if (const auto end = text.find("] "); end != std::string_view::npos)
-      text.remove_prefix(end + 2);
-  }
-  return text;
-}
-
 }  // namespace
 
 Assumptions parse_assumptions(std::string_view json_text, std::string_view source_name,
                               const Assumptions& base) {
-  const Place file{source_name, ""};
-  json doc;
-  try {
-    DuplicateKeys duplicates(source_name);
-    doc = json::parse(json_text, [&duplicates](int depth, json::parse_event_t event, json& parsed) {
-      return duplicates(depth, event, parsed);
-    });
-  } catch (const json::parse_error& e) {
-    throw detail::assumption_error(
-        file, "", fmt::format("not valid JSON at byte {}: {}", e.byte, plain_message(e.what())));
-  } catch (const json::exception& e) {
-    throw detail::assumption_error(file, "",
-                                   fmt::format("not valid JSON: {}", plain_message(e.what())));
-  }
-  if (!doc.is_object())
-    throw detail::assumption_error(
-        file, "",
-        fmt::format(R"(holds {} {}; it must hold one JSON object such as {{"prepay": "psa:150"}})",
-                    doc.is_array() ? "an" : "a", doc.type_name()));
+  const json doc = detail::parse_json_object(
+      json_text, R"(it must hold one JSON object such as {"prepay": "psa:150"})",
+      [source_name](std::string_view key, std::string_view message) {
+        return detail::assumption_error({source_name, key}, "", message);
+      });
 
   Assumptions out = base;
   for (const auto& [key, value] : doc.items()) {
@@ -245,24 +154,10 @@ Assumptions parse_assumptions(std::string_view json_text, std::string_view sourc
 }
 
 Assumptions load_assumptions(const std::string& path, const Assumptions& base) {
-  std::FILE* file = std::fopen(path.c_str(), "rb");
-  if (file == nullptr)
-    throw detail::assumption_error(
-        {path, ""}, "",
-        fmt::format("cannot open the assumptions file ({})",
-                    std::error_code(errno, std::generic_category()).message()));
-  std::string text;
-  char buffer[1 << 16];
-  std::size_t got = 0;
-  while ((got = std::fread(buffer, 1, sizeof buffer, file)) > 0) text.append(buffer, got);
-  const bool failed = std::ferror(file) != 0;
-  const int error = errno;
-  std::fclose(file);
-  if (failed)
-    throw detail::assumption_error(
-        {path, ""}, "",
-        fmt::format("cannot read the assumptions file ({})",
-                    std::error_code(error, std::generic_category()).message()));
+  const std::string text = detail::read_text_file(
+      path, "assumptions file", [&path](std::string_view key, std::string_view message) {
+        return detail::assumption_error({path, key}, "", message);
+      });
   return parse_assumptions(text, path, base);
 }
 

@@ -1,5 +1,6 @@
 // Private to curves/: the three kinds of curve (prepay, default, severity) and the checks and text
-// parsing that the command-line forms and the JSON assumptions file share.
+// parsing that the command-line forms and the JSON assumptions file share; the exact percent
+// reading the yield-curve file uses as well.
 #pragma once
 
 #include <string>
@@ -39,10 +40,14 @@ struct Percent {
   std::string_view digits;
 };
 
+// The double nearest to the decimal `digits` x 10^-2, read in one rounding: "7" reads as "7e-2",
+// "1.5e1" as "1.5e-1", "4.31" as "0.0431" reads (not 4.31 / 100, which can round twice). `digits`
+// is a number std::from_chars accepts whole ("1e+300" too); the sign is kept: "-0.0" reads as -0.
+double hundredth(std::string_view digits);
+
 // A percent (8 = 8%) checked for this kind and returned as a decimal: finite, not negative, at
-// most 100. The decimal is the double nearest to digits x 10^-2 (not value / 100, which can round
-// twice), so any double has a percent text that reads back to it exactly. `shown` is the text
-// quoted in an error.
+// most 100. The decimal is hundredth(digits), -0 read as 0, so any double has a percent text that
+// reads back to it exactly. `shown` is the text quoted in an error.
 double checked_percent(CurveKind kind, Percent percent, Place place, std::string_view shown);
 // A standard-curve multiple in percent (150 = 150 PSA) as a decimal multiple (1.5), checked so
 // that the curve's peak stays at or below 100%.

@@ -17,8 +17,13 @@ constexpr std::string_view kDefaultForms =
 constexpr std::string_view kSeverityForms =
     "use PERCENT (of the defaulted balance), a vector A,B,C or a ramp FROM..TO/MONTHS";
 
-// The double nearest to the decimal `digits` x 10^-2, read in one rounding: "7" reads as
-// "7e-2", "1.5e1" as "1.5e-1". `digits` is a number std::from_chars has accepted whole.
+// The highest rate a standard curve reaches at this multiple (PSA from age 30, SDA ages 30-60).
+double standard_peak(CurveKind kind, double multiple) {
+  return kind == CurveKind::prepay ? psa_cpr(multiple, 30) : sda_cdr(multiple, 30);
+}
+
+}  // namespace
+
 double hundredth(std::string_view digits) {
   const auto e = digits.find_first_of("eE");
   int exponent = 0;
@@ -30,15 +35,8 @@ double hundredth(std::string_view digits) {
   const std::string scaled = fmt::format("{}e{}", digits.substr(0, e), exponent - 2);
   double v = 0;
   std::from_chars(scaled.data(), scaled.data() + scaled.size(), v);
-  return v + 0.0;  // -0 reads as 0
+  return v;
 }
-
-// The highest rate a standard curve reaches at this multiple (PSA from age 30, SDA ages 30-60).
-double standard_peak(CurveKind kind, double multiple) {
-  return kind == CurveKind::prepay ? psa_cpr(multiple, 30) : sda_cdr(multiple, 30);
-}
-
-}  // namespace
 
 const KindInfo& kind_info(CurveKind kind) {
   // Peaks of the 100% curves: PSA 6% CPR, SDA 0.60% CDR (DESIGN.md section 3).
@@ -73,7 +71,7 @@ double checked_percent(CurveKind kind, Percent percent, Place place, std::string
   if (!std::isfinite(percent.value)) fail("is not a finite number");
   if (percent.value < 0) fail(fmt::format("{}% is negative", percent.digits));
   if (percent.value > 100) fail(fmt::format("{}% is above 100%", percent.digits));
-  return hundredth(percent.digits);
+  return hundredth(percent.digits) + 0.0;  // -0 reads as 0
 }
 
 double checked_multiple(CurveKind kind, Percent percent, Place place, std::string_view shown) {
@@ -85,7 +83,7 @@ double checked_multiple(CurveKind kind, Percent percent, Place place, std::strin
   if (!std::isfinite(percent.value))
     fail(fmt::format("{} multiple is not a finite number", prefix));
   if (percent.value < 0) fail(fmt::format("{}:{} is negative", prefix, percent.digits));
-  const double multiple = hundredth(percent.digits);
+  const double multiple = hundredth(percent.digits) + 0.0;  // -0 reads as 0
   const double peak = standard_peak(kind, multiple);
   if (peak > 1.0)
     fail(fmt::format("{}:{} peaks at {:.6g}% {}, above 100% ({}:{} at most)", prefix,

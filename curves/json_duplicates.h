@@ -1,13 +1,18 @@
-// Private to curves/: a nlohmann parser callback that refuses a key given twice in one object
-// (nlohmann would keep the last silently), naming the key by its path: "quotes[2].rate".
+// Private to curves/: reading the JSON files curves/ takes (assumptions, yield curves) -- the file
+// as text, and a parse into one object that refuses a key given twice in one object (nlohmann would
+// keep the last silently), naming the key by its path: "quotes[2].rate".
 #pragma once
 
 #include <fmt/core.h>
 
+#include <cerrno>
 #include <cstddef>
+#include <cstdio>
 #include <nlohmann/json.hpp>
 #include <set>
 #include <string>
+#include <string_view>
+#include <system_error>
 #include <utility>
 #include <vector>
 
@@ -72,5 +77,71 @@ class DuplicateKeys {
   Fail fail_;
   std::vector<Frame> frames_;
 };
+
+// The value as the user wrote it: a string without its quotes, anything else as JSON.
+inline std::string shown(const nlohmann::json& value) {
+  return value.is_string() ? value.get<std::string>() : value.dump();
+}
+
+// nlohmann's message without its "[json.exception.parse_error.101] " prefix.
+inline std::string_view plain_message(const char* what) {
+  std::string_view text(what);
+  if (!text.empty() && text.front() == '[') {
+    if (const auto end = text.find("] "); end != std::string_view::npos)
+      text.remove_prefix(end + 2);
+  }
+  return text;
+}
+
+// In the two readers below, `error(key, message)` returns the exception to throw for a problem at
+// `key` ("" for the whole file): an AssumptionError or a CurveError naming the file.
+
+// The whole file at `path`. Throws error("", "cannot open the <what> (<reason>)") or "cannot read
+// the <what> (<reason>)"; `what` is "curve file", "assumptions file".
+template <class Error>
+std::string read_text_file(const std::string& path, std::string_view what, Error error) {
+  std::FILE* file = std::fopen(path.c_str(), "rb");
+  if (file == nullptr)
+    throw error("", fmt::format("cannot open the {} ({})", what,
+                                std::error_code(errno, std::generic_category()).message()));
+  std::string text;
+  char buffer[1 << 16];
+  std::size_t got = 0;
+  while ((got = std::fread(buffer, 1, sizeof buffer, file)) > 0) text.append(buffer, got);
+  const bool failed = std::ferror(file) != 0;
+  const int code = errno;
+  std::fclose(file);
+  if (failed)
+    throw error("", fmt::format("cannot read the {} ({})", what,
+                                std::error_code(code, std::generic_category()).message()));
+  return text;
+}
+
+// `json_text` parsed whole; it must hold one JSON object. Throws error(key, message) for a key
+// given twice (key: its path), error("", ...) for text that is not JSON ("not valid JSON at byte
+// 12: ...") and for a document that is not an object ("holds an array; <must_hold>").
+template <class Error>
+nlohmann::json parse_json_object(std::string_view json_text, std::string_view must_hold,
+                                 Error error) {
+  using nlohmann::json;
+  json doc;
+  try {
+    auto duplicate = [&error](const std::string& path) {
+      throw error(path, "duplicate key; each key may appear only once");
+    };
+    DuplicateKeys<decltype(duplicate)> duplicates(duplicate);
+    doc = json::parse(json_text, [&duplicates](int depth, json::parse_event_t event, json& parsed) {
+      return duplicates(depth, event, parsed);
+    });
+  } catch (const json::parse_error& e) {
+    throw error("", fmt::format("not valid JSON at byte {}: {}", e.byte, plain_message(e.what())));
+  } catch (const json::exception& e) {
+    throw error("", fmt::format("not valid JSON: {}", plain_message(e.what())));
+  }
+  if (!doc.is_object())
+    throw error("", fmt::format("holds {} {}; {}", doc.is_array() ? "an" : "a", doc.type_name(),
+                                must_hold));
+  return doc;
+}
 
 }  // namespace poolbid::detail

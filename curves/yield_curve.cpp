@@ -17,10 +17,8 @@
 #include <fmt/core.h>
 
 #include <algorithm>
-#include <cerrno>
 #include <charconv>
 #include <cmath>
-#include <cstdio>
 #include <mutex>
 #include <nlohmann/json.hpp>
 #include <optional>
@@ -42,7 +40,6 @@
 #include <ql/time/schedule.hpp>
 #include <stdexcept>
 #include <string>
-#include <system_error>
 #include <vector>
 
 #include "curves/curve_errors.h"
@@ -56,6 +53,7 @@ namespace {
 namespace ql = QuantLib;
 namespace ext = QuantLib::ext;
 using detail::Place;
+using detail::shown;
 using nlohmann::json;
 
 // Rates and index spreads, percent: wide enough for any market seen, narrow enough to catch a
@@ -75,30 +73,8 @@ constexpr std::string_view kTenorForm =
     R"(from 1M to 50Y)";
 constexpr std::string_view kQuoteForm = R"({"kind": "swap", "tenor": "10Y", "rate": 4.1})";
 
-// The value as the user wrote it: a string without its quotes, anything else as JSON.
-std::string shown(const json& value) {
-  return value.is_string() ? value.get<std::string>() : value.dump();
-}
-
 [[noreturn]] void fail(Place place, const json& value, std::string_view message) {
   throw detail::curve_error(place, shown(value), message);
-}
-
-// The double nearest to the JSON number x 10^-2, read in one rounding (4.31 -> 0.0431 exactly as
-// "0.0431" reads, not 4.31 / 100), as the assumptions file reads percents.
-double hundredth(const json& number) {
-  const std::string digits = number.dump();
-  const std::size_t e = digits.find_first_of("eE");
-  int exponent = 0;
-  if (e != std::string::npos) {
-    const char* first = digits.data() + e + 1;
-    if (*first == '+') ++first;
-    std::from_chars(first, digits.data() + digits.size(), exponent);
-  }
-  const std::string scaled = fmt::format("{}e{}", digits.substr(0, e), exponent - 2);
-  double out = 0;
-  std::from_chars(scaled.data(), scaled.data() + scaled.size(), out);
-  return out;
 }
 
 // A percent in [low, high] as a decimal.
@@ -107,7 +83,7 @@ double percent_at(const json& value, Place place, double low, double high, std::
   const double percent = value.get<double>();
   if (!(percent >= low && percent <= high))
     fail(place, value, fmt::format("is outside {} .. {}; give {}", low, high, form));
-  return hundredth(value);
+  return detail::hundredth(value.dump());  // as the assumptions file reads percents
 }
 
 Rate rate_at(const json& value, Place place) {
@@ -311,42 +287,17 @@ std::shared_ptr<const ql::YieldTermStructure> bootstrap(const YieldCurve& curve)
   return shared(fixed);
 }
 
-// nlohmann's message without its "[json.exception.parse_error.101] " prefix.
-std::string_view plain_message(const char* what) {
-  std::string_view text(what);
-  if (!text.empty() && text.front() == '[') {
-    if (const auto end = text.find("] "); end != std::string_view::npos)
-      text.remove_prefix(end + 2);
-  }
-  return text;
-}
-
 }  // namespace
 
 YieldCurve parse_yield_curve(std::string_view json_text, std::string_view source_name) {
-  const Place file{source_name, ""};
-  json doc;
-  try {
-    auto duplicate = [source_name](const std::string& path) {
-      throw detail::curve_error({source_name, path}, "",
-                                "duplicate key; each key may appear only once");
-    };
-    detail::DuplicateKeys<decltype(duplicate)> duplicates(duplicate);
-    doc = json::parse(json_text, [&duplicates](int depth, json::parse_event_t event, json& parsed) {
-      return duplicates(depth, event, parsed);
-    });
-  } catch (const json::parse_error& e) {
-    throw detail::curve_error(
-        file, "", fmt::format("not valid JSON at byte {}: {}", e.byte, plain_message(e.what())));
-  } catch (const json::exception& e) {
-    throw detail::curve_error(file, "", fmt::format("not valid JSON: {}", plain_message(e.what())));
-  }
-  if (!doc.is_object())
-    throw detail::curve_error(
-        file, "",
-        fmt::format(R"(holds {} {}; a curve file holds one JSON object such as )"
-                    R"({{"as_of": "2026-12-01", "quotes": [{}]}})",
-                    doc.is_array() ? "an" : "a", doc.type_name(), kQuoteForm));
+  const json doc = detail::parse_json_object(
+      json_text,
+      fmt::format(R"(a curve file holds one JSON object such as )"
+                  R"({{"as_of": "2026-12-01", "quotes": [{}]}})",
+                  kQuoteForm),
+      [source_name](std::string_view key, std::string_view message) {
+        return detail::curve_error({source_name, key}, "", message);
+      });
 
   YieldCurve curve;
   curve.source = std::string(source_name);
@@ -384,24 +335,10 @@ YieldCurve parse_yield_curve(std::string_view json_text, std::string_view source
 }
 
 YieldCurve load_yield_curve(const std::string& path) {
-  std::FILE* file = std::fopen(path.c_str(), "rb");
-  if (file == nullptr)
-    throw detail::curve_error(
-        {path, ""}, "",
-        fmt::format("cannot open the curve file ({})",
-                    std::error_code(errno, std::generic_category()).message()));
-  std::string text;
-  char buffer[1 << 16];
-  std::size_t got = 0;
-  while ((got = std::fread(buffer, 1, sizeof buffer, file)) > 0) text.append(buffer, got);
-  const bool failed = std::ferror(file) != 0;
-  const int error = errno;
-  std::fclose(file);
-  if (failed)
-    throw detail::curve_error(
-        {path, ""}, "",
-        fmt::format("cannot read the curve file ({})",
-                    std::error_code(error, std::generic_category()).message()));
+  const std::string text = detail::read_text_file(
+      path, "curve file", [&path](std::string_view key, std::string_view message) {
+        return detail::curve_error({path, key}, "", message);
+      });
   return parse_yield_curve(text, path);
 }
 

@@ -3,10 +3,7 @@
 // Units: dollars; smm and mdr decimals per month; cpr, cdr and cum_loss_pct percent. CSV rounds
 // dollars to the cent; JSON gives numbers unrounded.
 #include <algorithm>
-#include <array>
-#include <cmath>
 #include <iterator>
-#include <ostream>
 #include <stdexcept>
 #include <string>
 #include <utility>
@@ -29,65 +26,13 @@ using detail::Align;
 using detail::Json;
 
 using detail::count_text;
-using detail::kLoanIdWidth;
-using detail::kValueWidth;
+using detail::CsvBuffer;
+using detail::put_fixed;
+using detail::put_money;
 
-using Buffer = fmt::memory_buffer;
-
-constexpr int kMoneyDecimals = 2;     // dollars to the cent
 constexpr int kMonthlyDecimals = 10;  // smm, mdr: decimals per month
 constexpr int kPercentDecimals = 6;   // cpr, cdr, cum_loss_pct: percent
 constexpr int kWalDecimals = 4;       // years
-// Loans CSV: rows are formatted into memory and handed to the stream in pieces of about this.
-constexpr std::size_t kStreamChunkBytes = std::size_t{1} << 20;
-
-// x to `decimals` places (0 to 12); a value that rounds to zero is "0.00", never "-0.00"; an
-// empty cell when x is NaN or infinite (a spreadsheet shows a blank, pandas reads NaN).
-void put_fixed(Buffer& out, double x, int decimals) {
-  static constexpr std::array<double, 13> kHalfUnit = {
-      0.5, 0.05, 5e-3, 5e-4, 5e-5, 5e-6, 5e-7, 5e-8, 5e-9, 5e-10, 5e-11, 5e-12, 5e-13};
-  if (!std::isfinite(x)) return;
-  if (std::fabs(x) < kHalfUnit[static_cast<std::size_t>(decimals)]) x = 0.0;
-  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{:.{}f}"), x, decimals);
-}
-
-// Dollars to the cent, as whole cents (round half away from zero): the loans CSV writes a million
-// lines of these, and integer formatting is several times faster than fixed-point.
-void put_money(Buffer& out, double x) {
-  if (!std::isfinite(x)) return;
-  if (!(std::fabs(x) < 1e15)) {  // beyond exact cents in a double; never a loan's
-    put_fixed(out, x, kMoneyDecimals);
-    return;
-  }
-  const long long cents = std::llround(x * 100);
-  if (cents < 0) out.push_back('-');
-  const unsigned long long magnitude =
-      cents < 0 ? 0ULL - static_cast<unsigned long long>(cents)
-                : static_cast<unsigned long long>(cents);
-  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{}.{:02}"), magnitude / 100,
-                 magnitude % 100);
-}
-
-// A CSV cell as RFC 4180 writes it: quoted, with quotes doubled, when it holds a comma, a quote
-// or a line break; as is otherwise.
-void put_csv_text(Buffer& out, std::string_view text) {
-  if (text.find_first_of(",\"\r\n") == std::string_view::npos) {
-    out.append(text);
-    return;
-  }
-  out.push_back('"');
-  for (char ch : text) {
-    if (ch == '"') out.push_back('"');
-    out.push_back(ch);
-  }
-  out.push_back('"');
-}
-
-std::string csv_text(std::string_view text) {
-  Buffer out;
-  put_csv_text(out, text);
-  return fmt::to_string(out);
-}
 
 void check_sizes(const PoolFlows& pool) {
   const auto n = static_cast<std::size_t>(std::max(pool.months, 0));
@@ -141,48 +86,15 @@ PoolTotals totals(const PoolFlows& p) {
   };
 }
 
-// ---- Rejected rows ------------------------------------------------------------------------------
-
-std::string rejects_table(const TapeRead& tape) {
-  detail::TextTable table{{"row", "loan id", "column", "value", "reason"},
-                          {Align::right, Align::left, Align::left, Align::left, Align::left},
-                          {}};
-  for (const RowProblem& p : tape.problems) {
-    if (!p.reject) continue;
-    table.rows.push_back({count_text(p.row),
-                          detail::display_text(p.loan_id, kLoanIdWidth, "(blank)"),
-                          detail::display_text(p.column, kValueWidth, "(whole row)"),
-                          detail::display_text(p.value, kValueWidth, "(blank)"),
-                          detail::display_text(p.reason, 400)});
-  }
-  return detail::render(table);
-}
-
-std::string rejects_heading(const TapeRead& tape) {
-  return fmt::format("{} (UPB {}) not projected",
-                     detail::count_of(tape.rows_rejected, "row rejected", "rows rejected"),
-                     detail::dollars(tape.upb_rejected));
-}
-
 // ---- Text report --------------------------------------------------------------------------------
 
 std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days) {
-  detail::TextTable table{{}, {Align::left, Align::left}, {}};
-  table.rows = {
-      {"prepayment (CPR)", prepay_text(a.prepay)},
-      {"default (CDR)", default_text(a.default_rate)},
-      {"loss severity (% of defaulted balance)", severity_text(a.severity)},
-      {"liquidation lag", detail::count_of(static_cast<std::size_t>(std::max(a.lag_months, 0)),
-                                           "month after default", "months after default")},
-      {"advancing", std::string(to_string(a.advancing))},
-      {"delinquent loans default in month 1",
-       a.delinquent_default ? "yes (90+ days delinquent or in foreclosure at cut-off)"
-                            : "no (they follow the curves)"},
+  detail::TextTable table{{}, {Align::left, Align::left}, detail::assumption_rows(a)};
+  table.rows.push_back(
       {"payment delay",
-       fmt::format("{} (month 1 paid {})", detail::count_of(static_cast<std::size_t>(delay_days),
-                                                             "day", "days"),
-                   detail::iso_date(payment_date(cutoff, 1, delay_days)))},
-  };
+       fmt::format("{} (month 1 paid {})",
+                   detail::count_of(static_cast<std::size_t>(delay_days), "day", "days"),
+                   detail::iso_date(payment_date(cutoff, 1, delay_days)))});
   return detail::render(table);
 }
 
@@ -263,17 +175,6 @@ std::string months_text(const PoolFlows& p, Date cutoff, int delay_days) {
 
 // ---- JSON ---------------------------------------------------------------------------------------
 
-Json assumptions_json(const Assumptions& a) {
-  return Json{
-      {"prepay", prepay_text(a.prepay)},
-      {"default", default_text(a.default_rate)},
-      {"severity", severity_text(a.severity)},
-      {"lag_months", a.lag_months},
-      {"advancing", std::string(to_string(a.advancing))},
-      {"delinquent_default", a.delinquent_default},
-  };
-}
-
 Json month_json(const PoolFlows& p, int t, Date cutoff, int delay_days) {
   const auto i = static_cast<std::size_t>(t - 1);
   using detail::number_or_null;
@@ -318,13 +219,10 @@ void check_sizes(const LoanArrays& loans, const LoanFlows& f) {
 }
 
 // Loans [first, last) appended to `out`, one line each.
-void put_loan_rows(Buffer& out, const LoanArrays& loans, const LoanFlows& f,
+void put_loan_rows(CsvBuffer& out, const LoanArrays& loans, const LoanFlows& f,
                    const std::vector<std::string>& sellers, std::size_t first, std::size_t last) {
   for (std::size_t i = first; i < last; ++i) {
-    put_csv_text(out, loans.loan_id[i]);
-    fmt::format_to(std::back_inserter(out), FMT_COMPILE(",{},"), loans.row[i]);
-    const std::size_t s = loans.seller[i];
-    if (s < sellers.size()) out.append(sellers[s]);
+    detail::put_loan_cells(out, loans, sellers, i);
     for (double x : {loans.current_balance[i], f.sched_principal[i], f.prepayment[i],
                      f.defaults[i], f.loss[i], f.recovery[i], f.gross_interest[i],
                      f.servicing[i], f.net_interest[i], f.advanced_interest[i], f.cash_flow[i]}) {
@@ -337,18 +235,11 @@ void put_loan_rows(Buffer& out, const LoanArrays& loans, const LoanFlows& f,
   }
 }
 
-std::vector<std::string> csv_seller_names(const LoanArrays& loans) {
-  std::vector<std::string> names;
-  names.reserve(loans.seller_names.size());
-  for (const std::string& name : loans.seller_names) names.push_back(csv_text(name));
-  return names;
-}
-
 }  // namespace
 
 std::string cashflow_csv(const PoolFlows& p, Date cutoff, int delay_days) {
   check_sizes(p);
-  Buffer out;
+  CsvBuffer out;
   out.append(kCashflowCsvHeader);
   out.push_back('\n');
   for (int t = 1; t <= p.months; ++t) {
@@ -376,29 +267,20 @@ std::string cashflow_csv(const PoolFlows& p, Date cutoff, int delay_days) {
 
 std::string loan_flows_csv(const LoanArrays& loans, const LoanFlows& flows) {
   check_sizes(loans, flows);
-  Buffer out;
-  out.append(kLoanFlowsCsvHeader);
-  out.push_back('\n');
-  put_loan_rows(out, loans, flows, csv_seller_names(loans), 0, loans.size());
-  return fmt::to_string(out);
+  const std::vector<std::string> sellers = detail::csv_seller_names(loans);
+  return detail::csv_document(kLoanFlowsCsvHeader, loans.size(),
+                              [&](CsvBuffer& out, std::size_t first, std::size_t last) {
+                                put_loan_rows(out, loans, flows, sellers, first, last);
+                              });
 }
 
 void write_loan_flows_csv(std::ostream& stream, const LoanArrays& loans, const LoanFlows& flows) {
   check_sizes(loans, flows);
-  const std::vector<std::string> sellers = csv_seller_names(loans);
-  Buffer out;
-  out.append(kLoanFlowsCsvHeader);
-  out.push_back('\n');
-  constexpr std::size_t kRowsPerPiece = 4096;
-  for (std::size_t first = 0; first < loans.size(); first += kRowsPerPiece) {
-    put_loan_rows(out, loans, flows, sellers, first, std::min(first + kRowsPerPiece, loans.size()));
-    if (out.size() >= kStreamChunkBytes) {
-      stream.write(out.data(), static_cast<std::streamsize>(out.size()));
-      out.clear();
-      if (!stream) return;  // the caller sees the stream's state
-    }
-  }
-  stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+  const std::vector<std::string> sellers = detail::csv_seller_names(loans);
+  detail::write_csv_document(stream, kLoanFlowsCsvHeader, loans.size(),
+                             [&](CsvBuffer& out, std::size_t first, std::size_t last) {
+                               put_loan_rows(out, loans, flows, sellers, first, last);
+                             });
 }
 
 std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
@@ -423,20 +305,7 @@ std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
     out += months_text(pool, cutoff, delay_days);
   }
 
-  out += '\n';
-  if (tape.rows_rejected == 0) {
-    out += fmt::format("rejected rows: none; all {} read are projected.\n",
-                       detail::count_of(tape.rows_read, "row", "rows"));
-  } else {
-    out += fmt::format("rejected rows: {}:\n", rejects_heading(tape));
-    out += rejects_table(tape);
-  }
-  if (tape.rows_with_warnings > 0)
-    out += fmt::format("{} with warnings {} projected as read; `poolbid check` lists the "
-                       "warnings.\n",
-                       detail::count_of(tape.rows_with_warnings, "accepted row", "accepted rows"),
-                       tape.rows_with_warnings == 1 ? "is" : "are");
-  out += fmt::format("\n{}\n", caution_text());
+  out += detail::rejects_and_caution(tape, "projected");
   return out;
 }
 
@@ -472,26 +341,14 @@ std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
   };
   Json months = Json::array();
   for (int m = 1; m <= pool.months; ++m) months.push_back(month_json(pool, m, cutoff, delay_days));
-  Json rejected = Json::array();
-  for (const RowProblem& p : tape.problems) {
-    if (!p.reject) continue;
-    rejected.push_back(Json{
-        {"row", p.row},
-        {"loan_id", p.loan_id},
-        {"field", p.field ? Json(std::string(field_name(*p.field))) : Json(nullptr)},
-        {"column", p.column},
-        {"value", p.value},
-        {"reason", p.reason},
-    });
-  }
   Json document = {
       {"file", tape.file},
       {"cutoff_date", detail::iso_date(cutoff)},
       {"payment_delay_days", delay_days},
-      {"assumptions", assumptions_json(assumptions)},
+      {"assumptions", detail::assumptions_json(assumptions)},
       {"summary", std::move(summary)},
       {"months", std::move(months)},
-      {"rejected", std::move(rejected)},
+      {"rejected", detail::rejected_json(tape)},
       {"caution", std::string(caution_text())},
   };
   return detail::dump_json(document);
@@ -499,8 +356,8 @@ std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
 
 std::string rejected_rows_text(const TapeRead& tape) {
   if (tape.rows_rejected == 0) return "";
-  return fmt::format("poolbid: {}; each rejecting problem:\n{}", rejects_heading(tape),
-                     rejects_table(tape));
+  return fmt::format("poolbid: {}; each rejecting problem:\n{}",
+                     detail::rejects_heading(tape, "projected"), detail::rejects_table(tape));
 }
 
 }  // namespace poolbid

@@ -1,12 +1,22 @@
-// Shared formatting for the reports: thousands separators, dates, terminal-safe text, tables.
+// Shared formatting for the reports: thousands separators, dates, terminal-safe text, tables,
+// JSON pieces, CSV cells, and the assumptions and rejected rows the cash-flow and price reports
+// both show.
 #include "report/format.h"
 
 #include <algorithm>
+#include <array>
 #include <chrono>
 #include <cmath>
 #include <cstdint>
+#include <iterator>
+#include <ostream>
 
+#include <fmt/compile.h>
 #include <fmt/core.h>
+#include <fmt/format.h>
+
+#include "curves/curves.h"
+#include "report/report.h"
 
 namespace poolbid::detail {
 namespace {
@@ -201,6 +211,57 @@ std::string render(const TextTable& table, std::string_view indent) {
   return out;
 }
 
+std::vector<std::vector<std::string>> assumption_rows(const Assumptions& a) {
+  return {
+      {"prepayment (CPR)", prepay_text(a.prepay)},
+      {"default (CDR)", default_text(a.default_rate)},
+      {"loss severity (% of defaulted balance)", severity_text(a.severity)},
+      {"liquidation lag", count_of(static_cast<std::size_t>(std::max(a.lag_months, 0)),
+                                   "month after default", "months after default")},
+      {"advancing", std::string(to_string(a.advancing))},
+      {"delinquent loans default in month 1",
+       a.delinquent_default ? "yes (90+ days delinquent or in foreclosure at cut-off)"
+                            : "no (they follow the curves)"},
+  };
+}
+
+std::string rejects_table(const TapeRead& tape) {
+  TextTable table{{"row", "loan id", "column", "value", "reason"},
+                  {Align::right, Align::left, Align::left, Align::left, Align::left},
+                  {}};
+  for (const RowProblem& p : tape.problems) {
+    if (!p.reject) continue;
+    table.rows.push_back({count_text(p.row), display_text(p.loan_id, kLoanIdWidth, "(blank)"),
+                          display_text(p.column, kValueWidth, "(whole row)"),
+                          display_text(p.value, kValueWidth, "(blank)"),
+                          display_text(p.reason, 400)});
+  }
+  return render(table);
+}
+
+std::string rejects_heading(const TapeRead& tape, std::string_view done) {
+  return fmt::format("{} (UPB {}) not {}",
+                     count_of(tape.rows_rejected, "row rejected", "rows rejected"),
+                     dollars(tape.upb_rejected), done);
+}
+
+std::string rejects_and_caution(const TapeRead& tape, std::string_view done) {
+  std::string out = "\n";
+  if (tape.rows_rejected == 0) {
+    out += fmt::format("rejected rows: none; all {} read are {}.\n",
+                       count_of(tape.rows_read, "row", "rows"), done);
+  } else {
+    out += fmt::format("rejected rows: {}:\n", rejects_heading(tape, done));
+    out += rejects_table(tape);
+  }
+  if (tape.rows_with_warnings > 0)
+    out += fmt::format("{} with warnings {} {} as read; `poolbid check` lists the warnings.\n",
+                       count_of(tape.rows_with_warnings, "accepted row", "accepted rows"),
+                       tape.rows_with_warnings == 1 ? "is" : "are", done);
+  out += fmt::format("\n{}\n", caution_text());
+  return out;
+}
+
 Json cutoff_json(const std::optional<Date>& cutoff) {
   return cutoff ? Json(iso_date(*cutoff)) : Json(nullptr);
 }
@@ -225,6 +286,114 @@ Json problem_json(const RowProblem& problem) {
 
 std::string dump_json(const Json& document) {
   return document.dump(2, ' ', false, Json::error_handler_t::replace) + "\n";
+}
+
+Json assumptions_json(const Assumptions& a) {
+  return Json{
+      {"prepay", prepay_text(a.prepay)},
+      {"default", default_text(a.default_rate)},
+      {"severity", severity_text(a.severity)},
+      {"lag_months", a.lag_months},
+      {"advancing", std::string(to_string(a.advancing))},
+      {"delinquent_default", a.delinquent_default},
+  };
+}
+
+Json rejected_json(const TapeRead& tape) {
+  Json rejected = Json::array();
+  for (const RowProblem& p : tape.problems) {
+    if (!p.reject) continue;
+    rejected.push_back(Json{
+        {"row", p.row},
+        {"loan_id", p.loan_id},
+        {"field", p.field ? Json(std::string(field_name(*p.field))) : Json(nullptr)},
+        {"column", p.column},
+        {"value", p.value},
+        {"reason", p.reason},
+    });
+  }
+  return rejected;
+}
+
+void put_fixed(CsvBuffer& out, double x, int decimals) {
+  static constexpr std::array<double, 13> kHalfUnit = {
+      0.5, 0.05, 5e-3, 5e-4, 5e-5, 5e-6, 5e-7, 5e-8, 5e-9, 5e-10, 5e-11, 5e-12, 5e-13};
+  if (!std::isfinite(x)) return;
+  if (std::fabs(x) < kHalfUnit[static_cast<std::size_t>(decimals)]) x = 0.0;
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{:.{}f}"), x, decimals);
+}
+
+void put_money(CsvBuffer& out, double x) {
+  if (!std::isfinite(x)) return;
+  if (!(std::fabs(x) < 1e15)) {  // beyond exact cents in a double; never a loan's
+    put_fixed(out, x, 2);
+    return;
+  }
+  const long long cents = std::llround(x * 100);
+  if (cents < 0) out.push_back('-');
+  const unsigned long long magnitude =
+      cents < 0 ? 0ULL - static_cast<unsigned long long>(cents)
+                : static_cast<unsigned long long>(cents);
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{}.{:02}"), magnitude / 100,
+                 magnitude % 100);
+}
+
+void put_csv_text(CsvBuffer& out, std::string_view text) {
+  if (text.find_first_of(",\"\r\n") == std::string_view::npos) {
+    out.append(text);
+    return;
+  }
+  out.push_back('"');
+  for (char ch : text) {
+    if (ch == '"') out.push_back('"');
+    out.push_back(ch);
+  }
+  out.push_back('"');
+}
+
+std::vector<std::string> csv_seller_names(const LoanArrays& loans) {
+  std::vector<std::string> names;
+  names.reserve(loans.seller_names.size());
+  for (const std::string& name : loans.seller_names) {
+    CsvBuffer cell;
+    put_csv_text(cell, name);
+    names.push_back(fmt::to_string(cell));
+  }
+  return names;
+}
+
+void put_loan_cells(CsvBuffer& out, const LoanArrays& loans,
+                    const std::vector<std::string>& sellers, std::size_t i) {
+  put_csv_text(out, loans.loan_id[i]);
+  fmt::format_to(std::back_inserter(out), FMT_COMPILE(",{},"), loans.row[i]);
+  const std::size_t s = loans.seller[i];
+  if (s < sellers.size()) out.append(sellers[s]);
+}
+
+std::string csv_document(std::string_view header, std::size_t rows, const PutRows& put_rows) {
+  CsvBuffer out;
+  out.append(header);
+  out.push_back('\n');
+  put_rows(out, 0, rows);
+  return fmt::to_string(out);
+}
+
+void write_csv_document(std::ostream& stream, std::string_view header, std::size_t rows,
+                        const PutRows& put_rows) {
+  constexpr std::size_t kRowsPerPiece = 4096;
+  constexpr std::size_t kStreamChunkBytes = std::size_t{1} << 20;
+  CsvBuffer out;
+  out.append(header);
+  out.push_back('\n');
+  for (std::size_t first = 0; first < rows; first += kRowsPerPiece) {
+    put_rows(out, first, std::min(first + kRowsPerPiece, rows));
+    if (out.size() >= kStreamChunkBytes) {
+      stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+      out.clear();
+      if (!stream) return;  // the caller sees the stream's state
+    }
+  }
+  stream.write(out.data(), static_cast<std::streamsize>(out.size()));
 }
 
 }  // namespace poolbid::detail

@@ -3,17 +3,13 @@
 // each loan's value at the pool's yield as CSV. Units: JSON rates and spreads decimals, prices
 // percent of cut-off UPB, money dollars, fields ending in _bp basis points; CSV as its header says.
 #include <algorithm>
-#include <array>
 #include <cmath>
-#include <iterator>
 #include <limits>
-#include <ostream>
 #include <stdexcept>
 #include <string>
 #include <utility>
 #include <vector>
 
-#include <fmt/compile.h>
 #include <fmt/core.h>
 #include <fmt/format.h>
 
@@ -31,11 +27,11 @@ using detail::Align;
 using detail::Json;
 
 using detail::count_text;
-using detail::kLoanIdWidth;
+using detail::CsvBuffer;
 using detail::kValueWidth;
 using detail::number_or_null;
-
-using Buffer = fmt::memory_buffer;
+using detail::put_fixed;
+using detail::put_money;
 
 // Text report.
 constexpr int kPriceDecimals = 3;     // percent of UPB: 98.625
@@ -48,50 +44,6 @@ constexpr int kCsvPriceDecimals = 6;
 constexpr int kCsvRateDecimals = 4;   // note rate, percent
 constexpr int kCsvWalDecimals = 4;
 constexpr int kCsvLossPctDecimals = 4;
-constexpr std::size_t kStreamChunkBytes = std::size_t{1} << 20;
-
-// ---- CSV cells (the same rules as the cash-flow report's loans CSV) -----------------------------
-
-// x to `decimals` places (0 to 12); a value that rounds to zero is "0.00", never "-0.00"; an
-// empty cell when x is NaN or infinite.
-void put_fixed(Buffer& out, double x, int decimals) {
-  static constexpr std::array<double, 13> kHalfUnit = {
-      0.5, 0.05, 5e-3, 5e-4, 5e-5, 5e-6, 5e-7, 5e-8, 5e-9, 5e-10, 5e-11, 5e-12, 5e-13};
-  if (!std::isfinite(x)) return;
-  if (std::fabs(x) < kHalfUnit[static_cast<std::size_t>(decimals)]) x = 0.0;
-  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{:.{}f}"), x, decimals);
-}
-
-// Dollars to the cent, as whole cents rounded half away from zero.
-void put_money(Buffer& out, double x) {
-  if (!std::isfinite(x)) return;
-  if (!(std::fabs(x) < 1e15)) {  // beyond exact cents in a double; never a loan's
-    put_fixed(out, x, 2);
-    return;
-  }
-  const long long cents = std::llround(x * 100);
-  if (cents < 0) out.push_back('-');
-  const unsigned long long magnitude =
-      cents < 0 ? 0ULL - static_cast<unsigned long long>(cents)
-                : static_cast<unsigned long long>(cents);
-  fmt::format_to(std::back_inserter(out), FMT_COMPILE("{}.{:02}"), magnitude / 100,
-                 magnitude % 100);
-}
-
-// A CSV cell as RFC 4180 writes it: quoted, with quotes doubled, when it holds a comma, a quote
-// or a line break; as is otherwise.
-void put_csv_text(Buffer& out, std::string_view text) {
-  if (text.find_first_of(",\"\r\n") == std::string_view::npos) {
-    out.append(text);
-    return;
-  }
-  out.push_back('"');
-  for (char ch : text) {
-    if (ch == '"') out.push_back('"');
-    out.push_back(ch);
-  }
-  out.push_back('"');
-}
 
 // ---- Text pieces --------------------------------------------------------------------------------
 
@@ -193,18 +145,7 @@ std::string curve_section(const YieldCurve& curve) {
 }
 
 std::string assumptions_section(const Assumptions& a) {
-  detail::TextTable table{{}, {Align::left, Align::left}, {}};
-  table.rows = {
-      {"prepayment (CPR)", prepay_text(a.prepay)},
-      {"default (CDR)", default_text(a.default_rate)},
-      {"loss severity (% of defaulted balance)", severity_text(a.severity)},
-      {"liquidation lag", detail::count_of(static_cast<std::size_t>(std::max(a.lag_months, 0)),
-                                           "month after default", "months after default")},
-      {"advancing", std::string(to_string(a.advancing))},
-      {"delinquent loans default in month 1",
-       a.delinquent_default ? "yes (90+ days delinquent or in foreclosure at cut-off)"
-                            : "no (they follow the curves)"},
-  };
+  const detail::TextTable table{{}, {Align::left, Align::left}, detail::assumption_rows(a)};
   return detail::render(table);
 }
 
@@ -272,21 +213,6 @@ std::string risk_section(const BidResult& r, const BidRequest& request) {
                      short_number(request.shock_bp), detail::render(table));
 }
 
-std::string rejects_table(const TapeRead& tape) {
-  detail::TextTable table{{"row", "loan id", "column", "value", "reason"},
-                          {Align::right, Align::left, Align::left, Align::left, Align::left},
-                          {}};
-  for (const RowProblem& p : tape.problems) {
-    if (!p.reject) continue;
-    table.rows.push_back({count_text(p.row),
-                          detail::display_text(p.loan_id, kLoanIdWidth, "(blank)"),
-                          detail::display_text(p.column, kValueWidth, "(whole row)"),
-                          detail::display_text(p.value, kValueWidth, "(blank)"),
-                          detail::display_text(p.reason, 400)});
-  }
-  return detail::render(table);
-}
-
 // The pricing cut-off; the tape's, when it has one, must be the same day.
 Date cutoff_of(const TapeRead& tape, const BidRequest& request) {
   const Date cutoff = request.settlement.cutoff;
@@ -322,17 +248,6 @@ Json curve_json(const YieldCurve& curve) {
   };
 }
 
-Json assumptions_json(const Assumptions& a) {
-  return Json{
-      {"prepay", prepay_text(a.prepay)},
-      {"default", default_text(a.default_rate)},
-      {"severity", severity_text(a.severity)},
-      {"lag_months", a.lag_months},
-      {"advancing", std::string(to_string(a.advancing))},
-      {"delinquent_default", a.delinquent_default},
-  };
-}
-
 Json view_json(const PoolView& v) {
   return Json{
       {"cash_flow_yield", number_or_null(v.cfy)},
@@ -343,22 +258,6 @@ Json view_json(const PoolView& v) {
       {"wal_years", number_or_null(v.wal_years)},
       {"modified_duration", number_or_null(v.modified_duration)},
   };
-}
-
-Json rejected_json(const TapeRead& tape) {
-  Json rejected = Json::array();
-  for (const RowProblem& p : tape.problems) {
-    if (!p.reject) continue;
-    rejected.push_back(Json{
-        {"row", p.row},
-        {"loan_id", p.loan_id},
-        {"field", p.field ? Json(std::string(field_name(*p.field))) : Json(nullptr)},
-        {"column", p.column},
-        {"value", p.value},
-        {"reason", p.reason},
-    });
-  }
-  return rejected;
 }
 
 // ---- Loans CSV ----------------------------------------------------------------------------------
@@ -378,29 +277,15 @@ void check_sizes(const LoanArrays& loans, const LoanFlows& f) {
     throw std::invalid_argument("loan values: tape columns of different lengths");
 }
 
-std::vector<std::string> csv_seller_names(const LoanArrays& loans) {
-  std::vector<std::string> names;
-  names.reserve(loans.seller_names.size());
-  for (const std::string& name : loans.seller_names) {
-    Buffer cell;
-    put_csv_text(cell, name);
-    names.push_back(fmt::to_string(cell));
-  }
-  return names;
-}
-
 // Loans [first, last) appended to `out`, one line each.
-void put_value_rows(Buffer& out, const LoanArrays& loans, const LoanFlows& f,
+void put_value_rows(CsvBuffer& out, const LoanArrays& loans, const LoanFlows& f,
                     const std::vector<std::string>& sellers, std::size_t first,
                     std::size_t last) {
   for (std::size_t i = first; i < last; ++i) {
     const double balance = loans.current_balance[i];
     const double value = f.present_value[i];
     const double loss = f.loss[i];
-    put_csv_text(out, loans.loan_id[i]);
-    fmt::format_to(std::back_inserter(out), FMT_COMPILE(",{},"), loans.row[i]);
-    const std::size_t s = loans.seller[i];
-    if (s < sellers.size()) out.append(sellers[s]);
+    detail::put_loan_cells(out, loans, sellers, i);
     out.push_back(',');
     put_money(out, balance);
     out.push_back(',');
@@ -451,21 +336,7 @@ std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidR
   out += '\n';
   out += risk_section(result, request);
 
-  out += '\n';
-  if (tape.rows_rejected == 0) {
-    out += fmt::format("rejected rows: none; all {} read are priced.\n",
-                       detail::count_of(tape.rows_read, "row", "rows"));
-  } else {
-    out += fmt::format("rejected rows: {} (UPB {}) not priced:\n",
-                       detail::count_of(tape.rows_rejected, "row rejected", "rows rejected"),
-                       detail::dollars(tape.upb_rejected));
-    out += rejects_table(tape);
-  }
-  if (tape.rows_with_warnings > 0)
-    out += fmt::format("{} with warnings {} priced as read; `poolbid check` lists the warnings.\n",
-                       detail::count_of(tape.rows_with_warnings, "accepted row", "accepted rows"),
-                       tape.rows_with_warnings == 1 ? "is" : "are");
-  out += fmt::format("\n{}\n", caution_text());
+  out += detail::rejects_and_caution(tape, "priced");
   return out;
 }
 
@@ -479,7 +350,7 @@ std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidR
       {"settlement_date", detail::iso_date(request.settlement.settle)},
       {"payment_delay_days", request.settlement.delay_days},
       {"curve", curve_json(curve)},
-      {"assumptions", assumptions_json(request.assumptions)},
+      {"assumptions", detail::assumptions_json(request.assumptions)},
       {"target", Json{{"kind", std::string(target_name(request.target))},
                       {"value", number_or_null(request.value)}}},
       {"bid", Json{{"clean_price", number_or_null(r.clean_price)},
@@ -504,7 +375,7 @@ std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidR
                             {"rows_read", tape.rows_read},
                             {"rows_rejected", tape.rows_rejected},
                             {"upb_rejected", number_or_null(tape.upb_rejected)}}},
-      {"rejected", rejected_json(tape)},
+      {"rejected", detail::rejected_json(tape)},
       {"caution", std::string(caution_text())},
   };
   return detail::dump_json(document);
@@ -513,32 +384,22 @@ std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidR
 std::string loan_values_csv(const LoanArrays& loans, const BidResult& result) {
   const LoanFlows& flows = result.flows.loans;
   check_sizes(loans, flows);
-  Buffer out;
-  out.append(kLoanValuesCsvHeader);
-  out.push_back('\n');
-  put_value_rows(out, loans, flows, csv_seller_names(loans), 0, loans.size());
-  return fmt::to_string(out);
+  const std::vector<std::string> sellers = detail::csv_seller_names(loans);
+  return detail::csv_document(kLoanValuesCsvHeader, loans.size(),
+                              [&](CsvBuffer& out, std::size_t first, std::size_t last) {
+                                put_value_rows(out, loans, flows, sellers, first, last);
+                              });
 }
 
 void write_loan_values_csv(std::ostream& stream, const LoanArrays& loans,
                            const BidResult& result) {
   const LoanFlows& flows = result.flows.loans;
   check_sizes(loans, flows);
-  const std::vector<std::string> sellers = csv_seller_names(loans);
-  Buffer out;
-  out.append(kLoanValuesCsvHeader);
-  out.push_back('\n');
-  constexpr std::size_t kRowsPerPiece = 4096;
-  for (std::size_t first = 0; first < loans.size(); first += kRowsPerPiece) {
-    put_value_rows(out, loans, flows, sellers, first,
-                   std::min(first + kRowsPerPiece, loans.size()));
-    if (out.size() >= kStreamChunkBytes) {
-      stream.write(out.data(), static_cast<std::streamsize>(out.size()));
-      out.clear();
-      if (!stream) return;  // the caller sees the stream's state
-    }
-  }
-  stream.write(out.data(), static_cast<std::streamsize>(out.size()));
+  const std::vector<std::string> sellers = detail::csv_seller_names(loans);
+  detail::write_csv_document(stream, kLoanValuesCsvHeader, loans.size(),
+                             [&](CsvBuffer& out, std::size_t first, std::size_t last) {
+                               put_value_rows(out, loans, flows, sellers, first, last);
+                             });
 }
 
 }  // namespace poolbid

@@ -356,15 +356,12 @@ TEST(ArmCouponPaths, ResetToANewRateReamortisesTheBalanceLeft) {
   // hand-computed: two level payments at 4% over 302 months, then the balance left re-amortised
   // at 7% over the 300 months left.
   const double first = level_payment(100'000, 0.04, 302);
-  double balance = 100'000;
-  for (int t = 1; t <= 2; ++t) {
-    EXPECT_NEAR(f.sched_principal[t - 1] + f.gross_interest[t - 1], first, 1e-8) << t;
-    balance = balance * (1 + 0.04 / 12) - first;
-  }
+  for (int t = 1; t <= 2; ++t) EXPECT_NEAR(scheduled_payment(f, t), first, 1e-8) << t;
+  const double balance = balance_after(100'000, 0.04, 302, 2);
   ASSERT_NEAR(f.begin_balance[2], balance, 1e-6);
   const double reset = level_payment(balance, 0.07, 300);
   for (int t = 3; t <= 302; ++t)
-    ASSERT_NEAR(f.sched_principal[t - 1] + f.gross_interest[t - 1], reset, 1e-7) << t;
+    ASSERT_NEAR(scheduled_payment(f, t), reset, 1e-7) << t;
   EXPECT_NEAR(f.gross_interest[2], balance * 0.07 / 12, 1e-8);
   EXPECT_NEAR(f.net_interest[2], balance * (0.07 - 0.0025) / 12, 1e-8);
 
@@ -439,20 +436,12 @@ TEST(ArmCouponPaths, ChangesProjectToTheSameBitsAsTheirMonthByMonthForm) {
       coupon_changes(sparse.loans, index.months, coupon_rates(sparse, loans, index.months));
   ASSERT_GT(dense.changes.size(), sparse.changes.size());
 
-  std::vector<double> discount(1 + 480 + 6 + 1);
-  for (std::size_t t = 0; t < discount.size(); ++t)
-    discount[t] = std::pow(1 + 0.05 / 12, -static_cast<double>(t));
   const Assumptions a{.prepay = standard_curve(CurveShape::psa, 2.0),
                       .default_rate = constant_curve(0.02),
                       .lag_months = 6,
                       .advancing = Advancing::interest};
-  ProjectionOptions o;
-  o.loan_totals = true;
-  o.discount = discount;
-  o.coupons = &sparse;
-  const Projection from_sparse = project_pool(loans, a, o);
-  o.coupons = &dense;
-  expect_same_projection(from_sparse, project_pool(loans, a, o));  // memcmp of every vector
+  expect_same_bits_as_month_by_month(loans, a, sparse, dense,
+                                     monthly_discount_factors(0.05, 1 + 480 + 6 + 1));
 }
 
 }  // namespace

@@ -1,6 +1,7 @@
-// Test support for cashflow/: random loan tapes, independent level-payment arithmetic, padding and
-// summing PoolFlows, vector comparisons that report the first few mismatches, not thousands,
-// bitwise comparisons of projections, and coupon changes written out month by month.
+// Test support for cashflow/: random loan tapes, independent level-payment arithmetic (payments,
+// balances left), padding and summing PoolFlows, vector comparisons that report the first few
+// mismatches, not thousands, bitwise comparisons of projections, coupon changes written out month
+// by month, and monthly discount factors.
 #pragma once
 
 #include <gtest/gtest.h>
@@ -25,6 +26,19 @@ inline double level_payment(double balance, double rate, int months) {
   if (rate == 0) return balance / months;
   const double r = rate / 12;
   return balance * r / (1 - std::pow(1 + r, -months));
+}
+
+// The balance left after `paid` level payments on `balance` at `rate` over `months`, amortised
+// here month by month: the balance grows by rate / 12 and the payment comes off.
+inline double balance_after(double balance, double rate, int months, int paid) {
+  const double payment = level_payment(balance, rate, months);
+  for (int t = 1; t <= paid; ++t) balance = balance * (1 + rate / 12) - payment;
+  return balance;
+}
+
+// Month t's scheduled payment (1-based): scheduled principal plus gross interest.
+inline double scheduled_payment(const PoolFlows& f, int t) {
+  return f.sched_principal[t - 1] + f.gross_interest[t - 1];
 }
 
 // A random tape: balances $20k-$1.5M, rates 2-12% in 1/8 steps, servicing 0.125-0.5%, 15-, 20-,
@@ -248,6 +262,31 @@ inline std::vector<double> coupon_rates(const CouponPaths& c, const LoanArrays& 
     out.insert(out.end(), path.begin(), path.end());
   }
   return out;
+}
+
+// `count` discount factors at `rate` a year compounded monthly: entry t is (1 + rate / 12)^-t.
+inline std::vector<double> monthly_discount_factors(double rate, std::size_t count) {
+  std::vector<double> out(count);
+  for (std::size_t t = 0; t < count; ++t) out[t] = std::pow(1 + rate / 12, -static_cast<double>(t));
+  return out;
+}
+
+// identity: `sparse` coupon changes and `dense`, the same rates month by month through
+// coupon_changes, project to the same bits (every pool vector and loan total, present values at
+// `discount`). Returns the projection from `sparse`.
+inline Projection expect_same_bits_as_month_by_month(const LoanArrays& loans,
+                                                     const Assumptions& a,
+                                                     const CouponPaths& sparse,
+                                                     const CouponPaths& dense,
+                                                     const std::vector<double>& discount) {
+  ProjectionOptions o;
+  o.loan_totals = true;
+  o.discount = discount;
+  o.coupons = &sparse;
+  Projection from_sparse = project_pool(loans, a, o);
+  o.coupons = &dense;
+  expect_same_projection(from_sparse, project_pool(loans, a, o));  // memcmp of every vector
+  return from_sparse;
 }
 
 // ProjectionOptions with one worker thread (for many small projections).

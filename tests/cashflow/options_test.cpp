@@ -19,10 +19,6 @@ namespace {
 
 using namespace testing_support;
 
-double payment(const PoolFlows& f, int t) {
-  return f.sched_principal[t - 1] + f.gross_interest[t - 1];
-}
-
 // ---- interest-only and balloon loans
 // ----------------------------------------------------------------
 
@@ -48,11 +44,11 @@ TEST(InterestOnly, PaysInterestOnlyThenAmortisesToZero) {
   // Month 111 (loan month 121): level payment on 300,000 over the 240 months left.
   // identity: the annuity formula, written independently in flows_support.h
   const double level = level_payment(300'000, 0.06, 240);
-  EXPECT_NEAR(payment(f, 111), level, 1e-8);
+  EXPECT_NEAR(scheduled_payment(f, 111), level, 1e-8);
   EXPECT_GT(f.sched_principal[110], 0.0);
   // identity: a level payment every month; the last pays the balance left, which carries the
   // rounding of 240 months
-  for (int t = 112; t <= 350; ++t) ASSERT_NEAR(payment(f, t), level, 1e-6) << t;
+  for (int t = 112; t <= 350; ++t) ASSERT_NEAR(scheduled_payment(f, t), level, 1e-6) << t;
   EXPECT_EQ(f.end_balance[349], 0.0);  // identity: amortises to exactly zero
 }
 
@@ -68,7 +64,7 @@ TEST(InterestOnly, PastTheInterestOnlyPeriodAmortisesFromMonthOne) {
   const PoolFlows f = project_pool(loans, Assumptions{}).pool;
   ASSERT_EQ(f.months, 230);
   // identity: the annuity formula over the 230 months left
-  EXPECT_NEAR(payment(f, 1), level_payment(250'000, 0.05, 230), 1e-8);
+  EXPECT_NEAR(scheduled_payment(f, 1), level_payment(250'000, 0.05, 230), 1e-8);
   EXPECT_EQ(f.end_balance.back(), 0.0);  // identity: amortises to exactly zero
 }
 
@@ -88,7 +84,7 @@ TEST(Balloon, PaysTheBalanceAtTheBalloonMonth) {
   const double level = level_payment(200'000, 0.07, 350);
   double balance = 200'000;
   for (int t = 1; t <= 73; ++t) {
-    ASSERT_NEAR(payment(f, t), level, 1e-8) << t;
+    ASSERT_NEAR(scheduled_payment(f, t), level, 1e-8) << t;
     balance = balance * (1 + 0.07 / 12) - level;
   }
   EXPECT_NEAR(f.begin_balance[73], balance, 1e-6);
@@ -351,22 +347,19 @@ TEST(CouponPaths, StepUpReamortisesOverTheMonthsLeft) {
   // identity: 12 months of level payment at 6% over 300 months, then 8% over 288, amortised
   // independently here.
   const double first = level_payment(400'000, 0.06, 300);
-  double balance = 400'000;
-  for (int t = 1; t <= 12; ++t) {
-    ASSERT_NEAR(payment(f, t), first, 1e-8) << t;
-    balance = balance * (1 + 0.06 / 12) - first;
-  }
+  for (int t = 1; t <= 12; ++t) ASSERT_NEAR(scheduled_payment(f, t), first, 1e-8) << t;
+  const double balance = balance_after(400'000, 0.06, 300, 12);
   ASSERT_NEAR(f.begin_balance[12], balance, 1e-6);
   const double stepped = level_payment(balance, 0.08, 288);
-  EXPECT_NEAR(payment(f, 13), stepped, 1e-7);
+  EXPECT_NEAR(scheduled_payment(f, 13), stepped, 1e-7);
   EXPECT_NEAR(f.gross_interest[12], balance * 0.08 / 12, 1e-8);
   EXPECT_NEAR(f.net_interest[12], balance * (0.08 - 0.00375) / 12, 1e-8);
-  for (int t = 14; t <= 23; ++t) ASSERT_NEAR(payment(f, t), stepped, 1e-7) << t;
+  for (int t = 14; t <= 23; ++t) ASSERT_NEAR(scheduled_payment(f, t), stepped, 1e-7) << t;
   // identity: month 24 on, 9% (the path's last rate) holds to maturity.
   const double b24 = f.begin_balance[23];
   const double last = level_payment(b24, 0.09, 300 - 23);
   for (int t = 24; t <= 300; ++t) {
-    ASSERT_NEAR(payment(f, t), last, 1e-7) << t;
+    ASSERT_NEAR(scheduled_payment(f, t), last, 1e-7) << t;
     ASSERT_NEAR(f.gross_interest[t - 1], f.begin_balance[t - 1] * 0.09 / 12, 1e-8) << t;
   }
   EXPECT_EQ(f.end_balance.back(), 0.0);
@@ -459,7 +452,7 @@ TEST(CouponPaths, StepDuringInterestOnlyPaysTheNewRateThenAmortisesAtIt) {
     for (int t = 61; t <= 300; ++t) {
       ASSERT_NEAR(f.begin_balance[t - 1], balance, 1e-6) << t;
       ASSERT_NEAR(f.gross_interest[t - 1], balance * 0.07 / 12, 1e-8) << t;
-      ASSERT_NEAR(payment(f, t), level, 1e-6) << t;
+      ASSERT_NEAR(scheduled_payment(f, t), level, 1e-6) << t;
       balance = balance * (1 + 0.07 / 12) - level;
     }
     EXPECT_NEAR(f.sched_principal[60], level - 400'000 * 0.07 / 12, 1e-8);
@@ -643,26 +636,16 @@ TEST(CouponPaths, ChangesAndTheirMonthByMonthFormProjectToTheSameBits) {
       coupon_changes(sparse.loans, months, coupon_rates(sparse, loans, months));
   ASSERT_NE(dense.changes.size(), sparse.changes.size());  // month-1 entries, at least
 
-  std::vector<double> discount(1 + 480 + 12 + 1);
-  for (std::size_t t = 0; t < discount.size(); ++t)
-    discount[t] = std::pow(1 + 0.05 / 12, -static_cast<double>(t));
   const Assumptions a{.prepay = standard_curve(CurveShape::psa, 1.5),
                       .default_rate = standard_curve(CurveShape::sda, 2.0),
                       .severity = constant_curve(0.4),
                       .lag_months = 12,
                       .advancing = Advancing::interest,
                       .delinquent_default = true};
-  ProjectionOptions o;
-  o.loan_totals = true;
-  o.discount = discount;
-  o.coupons = &sparse;
-  const Projection from_sparse = project_pool(loans, a, o);
-  o.coupons = &dense;
-  const Projection from_dense = project_pool(loans, a, o);
-  expect_same_projection(from_sparse, from_dense);  // memcmp of every pool and loan vector
+  const Projection from_sparse = expect_same_bits_as_month_by_month(
+      loans, a, sparse, dense, monthly_discount_factors(0.05, 1 + 480 + 12 + 1));
   // and the changes moved something: the pool differs from no paths at all
-  o.coupons = nullptr;
-  EXPECT_NE(project_pool(loans, a, o).pool.gross_interest, from_sparse.pool.gross_interest);
+  EXPECT_NE(project_pool(loans, a).pool.gross_interest, from_sparse.pool.gross_interest);
 }
 
 // ---- coupon_changes

@@ -15,6 +15,7 @@
 #include "report/format.h"
 #include "report/report.h"
 #include "tape/tape.h"
+#include "tests/report/report_support.h"
 #include "tests/support/csv_text.h"
 #include "tests/support/loans.h"
 
@@ -22,10 +23,11 @@ namespace poolbid {
 namespace {
 
 using nlohmann::json;
+using testing_support::contains;
+using testing_support::kCutoff;
 using testing_support::kNaN;
 using testing_support::make_loans;
-
-constexpr Date kCutoff{std::chrono::year{2026}, std::chrono::month{12}, std::chrono::day{1}};
+using testing_support::two_loan_tape;
 
 // A pool of `months` months, every column filled with `fill`.
 PoolFlows flat_pool(int months, double fill = 0) {
@@ -67,10 +69,6 @@ PoolFlows two_month_pool() {
 
 using testing_support::cells_in;
 using testing_support::lines_of;
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
 
 // ---- Pool CSV -----------------------------------------------------------------------------------
 
@@ -182,27 +180,6 @@ TEST(LoanFlowsCsv, FlowsWithoutLoanTotalsAreAnError) {
 
 // ---- Text and JSON ------------------------------------------------------------------------------
 
-// Two loans accepted, two rows rejected (row 3 for two reasons), one accepted row warned.
-TapeRead sample_tape() {
-  TapeRead t;
-  t.file = "pool.csv";
-  t.cutoff = kCutoff;
-  t.loans = make_loans({{.id = "L001", .upb = 600'000, .rate = 0.065},
-                        {.id = "L004", .upb = 400'000, .rate = 0.06}});
-  t.problems = {
-      {2, "L001", Field::dti, "DTI", "", "DTI not given", false},
-      {3, "L002", Field::note_rate, "NOTE_RT", "31", "note rate 31% outside 0-25%", true},
-      {3, "L002", Field::state, "ST", "ZZ", "not a US state code", true},
-      {4, "", std::nullopt, "", "a,b", "row has 2 cells, header has 33", true},
-  };
-  t.rows_read = 4;
-  t.rows_rejected = 2;
-  t.rows_with_warnings = 1;
-  t.upb_accepted = 1'000'000;
-  t.upb_rejected = 250'000;
-  return t;
-}
-
 Assumptions sample_assumptions() {
   Assumptions a;
   a.prepay = parse_prepay("psa:150");
@@ -214,7 +191,7 @@ Assumptions sample_assumptions() {
 }
 
 TEST(CashflowJson, HasEveryDocumentedKey) {
-  const json doc = json::parse(cashflow_json(sample_tape(), sample_assumptions(),
+  const json doc = json::parse(cashflow_json(two_loan_tape(), sample_assumptions(),
                                              two_month_pool(), 17));
   const std::vector<std::string> top = {"file",    "cutoff_date", "payment_delay_days",
                                         "assumptions", "summary", "months",
@@ -253,7 +230,7 @@ TEST(CashflowJson, HasEveryDocumentedKey) {
   // Each month has the CSV's columns, in the CSV's order.
   ASSERT_EQ(doc["months"].size(), 2u);
   const nlohmann::ordered_json in_order = nlohmann::ordered_json::parse(
-      cashflow_json(sample_tape(), sample_assumptions(), two_month_pool(), 17));
+      cashflow_json(two_loan_tape(), sample_assumptions(), two_month_pool(), 17));
   std::string month_keys;
   for (const auto& [key, value] : in_order["months"][0].items())
     month_keys += (month_keys.empty() ? "" : ",") + key;
@@ -273,7 +250,7 @@ TEST(CashflowJson, HasEveryDocumentedKey) {
 
 TEST(CashflowJson, AssumptionsObjectReadsBackAsAnAssumptionsFile) {
   const Assumptions a = sample_assumptions();
-  const json doc = json::parse(cashflow_json(sample_tape(), a, two_month_pool(), 17));
+  const json doc = json::parse(cashflow_json(two_loan_tape(), a, two_month_pool(), 17));
   const Assumptions back = parse_assumptions(doc["assumptions"].dump(), "report");
   EXPECT_EQ(prepay_text(back.prepay), prepay_text(a.prepay));
   EXPECT_EQ(default_text(back.default_rate), default_text(a.default_rate));
@@ -284,7 +261,7 @@ TEST(CashflowJson, AssumptionsObjectReadsBackAsAnAssumptionsFile) {
 }
 
 TEST(CashflowJson, NoCutoffIsAnError) {
-  TapeRead tape = sample_tape();
+  TapeRead tape = two_loan_tape();
   tape.cutoff.reset();
   EXPECT_THROW(cashflow_json(tape, {}, two_month_pool(), 17), std::invalid_argument);
   EXPECT_THROW(cashflow_text(tape, {}, two_month_pool(), 17), std::invalid_argument);
@@ -306,7 +283,7 @@ std::vector<int> table_months(const std::string& text) {
 }
 
 TEST(CashflowText, AssumptionsTotalsRejectsAndCaution) {
-  const std::string text = cashflow_text(sample_tape(), sample_assumptions(), two_month_pool(), 17);
+  const std::string text = cashflow_text(two_loan_tape(), sample_assumptions(), two_month_pool(), 17);
   EXPECT_TRUE(contains(text, "poolbid cashflows: pool.csv")) << text;
   EXPECT_TRUE(contains(text, "cut-off date: 2026-12-01")) << text;
   EXPECT_TRUE(contains(text, "psa:150")) << text;
@@ -326,7 +303,7 @@ TEST(CashflowText, AssumptionsTotalsRejectsAndCaution) {
 }
 
 TEST(CashflowText, ShowsTwelveMonthsThenEveryTwelfthAndTheLast) {
-  TapeRead tape = sample_tape();
+  TapeRead tape = two_loan_tape();
   const std::string text = cashflow_text(tape, {}, flat_pool(50), 17);
   EXPECT_EQ(table_months(text),
             (std::vector<int>{1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 24, 36, 48, 50}));
@@ -335,7 +312,7 @@ TEST(CashflowText, ShowsTwelveMonthsThenEveryTwelfthAndTheLast) {
 }
 
 TEST(CashflowText, EmptyPoolSaysSo) {
-  TapeRead tape = sample_tape();
+  TapeRead tape = two_loan_tape();
   tape.loans = LoanArrays{};
   std::string text;
   ASSERT_NO_THROW(text = cashflow_text(tape, {}, flat_pool(0), 17));
@@ -344,7 +321,7 @@ TEST(CashflowText, EmptyPoolSaysSo) {
 }
 
 TEST(RejectedRowsText, EveryRejectingProblemOneLineEach) {
-  const TapeRead tape = sample_tape();
+  const TapeRead tape = two_loan_tape();
   const std::string text = rejected_rows_text(tape);
   const std::vector<std::string> lines = lines_of(text);
   ASSERT_EQ(lines.size(), 5u) << text;  // summary, column heads, three problems
@@ -354,7 +331,7 @@ TEST(RejectedRowsText, EveryRejectingProblemOneLineEach) {
       << text;
   EXPECT_FALSE(contains(text, "DTI not given")) << text;  // a warning, not a reject
 
-  TapeRead clean = sample_tape();
+  TapeRead clean = two_loan_tape();
   clean.problems.clear();
   clean.rows_rejected = 0;
   EXPECT_EQ(rejected_rows_text(clean), "");

@@ -17,6 +17,7 @@
 #include "pricing/pricing.h"
 #include "report/report.h"
 #include "tape/tape.h"
+#include "tests/report/report_support.h"
 #include "tests/support/csv_text.h"
 #include "tests/support/loans.h"
 
@@ -25,43 +26,14 @@ namespace {
 
 using Ordered = nlohmann::ordered_json;
 using testing_support::cells_in;
+using testing_support::contains;
+using testing_support::kCutoff;
+using testing_support::line_starting;
 using testing_support::lines_of;
 using testing_support::make_loans;
+using testing_support::two_loan_tape;
 
-constexpr Date kCutoff{std::chrono::year{2026}, std::chrono::month{12}, std::chrono::day{1}};
 constexpr Date kSettle{std::chrono::year{2026}, std::chrono::month{12}, std::chrono::day{15}};
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
-
-// The first line of `text` that starts with `start` (after the table indent), or "".
-std::string line_starting(const std::string& text, const std::string& start) {
-  for (const std::string& line : lines_of(text))
-    if (line.rfind(start, 0) == 0) return line;
-  return "";
-}
-
-// Two loans accepted, two rows rejected (row 3 for two reasons), one accepted row warned.
-TapeRead sample_tape() {
-  TapeRead t;
-  t.file = "pool.csv";
-  t.cutoff = kCutoff;
-  t.loans = make_loans({{.id = "L001", .upb = 600'000, .rate = 0.065},
-                        {.id = "L004", .upb = 400'000, .rate = 0.06}});
-  t.problems = {
-      {2, "L001", Field::dti, "DTI", "", "DTI not given", false},
-      {3, "L002", Field::note_rate, "NOTE_RT", "31", "note rate 31% outside 0-25%", true},
-      {3, "L002", Field::state, "ST", "ZZ", "not a US state code", true},
-      {4, "", std::nullopt, "", "a,b", "row has 2 cells, header has 33", true},
-  };
-  t.rows_read = 4;
-  t.rows_rejected = 2;
-  t.rows_with_warnings = 1;
-  t.upb_accepted = 1'000'000;
-  t.upb_rejected = 250'000;
-  return t;
-}
 
 // The report reads only the curve's descriptive fields; no QuantLib curve is needed.
 YieldCurve flat_curve() {
@@ -138,7 +110,7 @@ BidResult sample_result() {
 
 TEST(PriceText, HeadingCurveAssumptionsAndTarget) {
   const std::string text =
-      price_text(sample_tape(), flat_curve(), sample_request(), sample_result());
+      price_text(two_loan_tape(), flat_curve(), sample_request(), sample_result());
   EXPECT_TRUE(contains(text, "poolbid price: pool.csv\n")) << text;
   EXPECT_TRUE(contains(text, "loans priced: 2 (UPB $1,000,000.00), net coupon 6.250%")) << text;
   EXPECT_TRUE(contains(text, "cut-off date: 2026-12-01\n")) << text;
@@ -165,20 +137,20 @@ TEST(PriceText, TargetsInTheirOwnUnits) {
   BidRequest request = sample_request();
   request.target = BidTarget::spread;
   request.value = 0.025;
-  EXPECT_TRUE(contains(price_text(sample_tape(), flat_curve(), request, sample_result()),
+  EXPECT_TRUE(contains(price_text(two_loan_tape(), flat_curve(), request, sample_result()),
                        "\ntarget: loss-adjusted Z-spread 250 bp\n"));
   request.value = 0.01255;
-  EXPECT_TRUE(contains(price_text(sample_tape(), flat_curve(), request, sample_result()),
+  EXPECT_TRUE(contains(price_text(two_loan_tape(), flat_curve(), request, sample_result()),
                        "\ntarget: loss-adjusted Z-spread 125.5 bp\n"));
   request.target = BidTarget::price;
   request.value = 98.5;
-  EXPECT_TRUE(contains(price_text(sample_tape(), flat_curve(), request, sample_result()),
+  EXPECT_TRUE(contains(price_text(two_loan_tape(), flat_curve(), request, sample_result()),
                        "\ntarget: clean price 98.500\n"));
 }
 
 TEST(PriceText, QuotedCurveWithShifts) {
   const std::string text =
-      price_text(sample_tape(), quoted_curve(), sample_request(), sample_result());
+      price_text(two_loan_tape(), quoted_curve(), sample_request(), sample_result());
   EXPECT_TRUE(contains(line_starting(text, "  source"), "curves/2026-12-01.json")) << text;
   EXPECT_TRUE(contains(line_starting(text, "  description"), "illustrative curve")) << text;
   EXPECT_TRUE(contains(line_starting(text, "  rates"), "3 quotes, 1M to 30Y")) << text;
@@ -189,7 +161,7 @@ TEST(PriceText, QuotedCurveWithShifts) {
 
 TEST(PriceText, BidViewsCreditAndRiskRounded) {
   const std::string text =
-      price_text(sample_tape(), flat_curve(), sample_request(), sample_result());
+      price_text(two_loan_tape(), flat_curve(), sample_request(), sample_result());
   const std::string clean = line_starting(text, "  clean price");
   EXPECT_TRUE(contains(clean, " 98.123 ") && contains(clean, "$981,234.50")) << text;
   const std::string accrued = line_starting(text, "  accrued interest");
@@ -225,7 +197,7 @@ TEST(PriceText, BidViewsCreditAndRiskRounded) {
 
 TEST(PriceText, RejectedRowsThenCaution) {
   const std::string text =
-      price_text(sample_tape(), flat_curve(), sample_request(), sample_result());
+      price_text(two_loan_tape(), flat_curve(), sample_request(), sample_result());
   EXPECT_TRUE(contains(text, "rejected rows: 2 rows rejected (UPB $250,000.00) not priced:"))
       << text;
   EXPECT_TRUE(contains(text, "note rate 31% outside 0-25%")) << text;
@@ -236,7 +208,7 @@ TEST(PriceText, RejectedRowsThenCaution) {
   const std::string caution = std::string(caution_text());
   EXPECT_EQ(text.substr(text.size() - caution.size() - 1), caution + "\n");
 
-  TapeRead clean = sample_tape();
+  TapeRead clean = two_loan_tape();
   clean.problems.clear();
   clean.rows_rejected = 0;
   clean.rows_with_warnings = 0;
@@ -245,7 +217,7 @@ TEST(PriceText, RejectedRowsThenCaution) {
 }
 
 TEST(PriceText, CutoffMustMatchTheSettlement) {
-  TapeRead tape = sample_tape();
+  TapeRead tape = two_loan_tape();
   tape.cutoff = Date{std::chrono::year{2026}, std::chrono::month{11}, std::chrono::day{1}};
   EXPECT_THROW(price_text(tape, flat_curve(), sample_request(), sample_result()),
                std::invalid_argument);
@@ -268,7 +240,7 @@ std::string keys_of(const Ordered& object) {
 
 TEST(PriceJson, KeysInTheDocumentedOrder) {
   const Ordered doc = Ordered::parse(
-      price_json(sample_tape(), quoted_curve(), sample_request(), sample_result()));
+      price_json(two_loan_tape(), quoted_curve(), sample_request(), sample_result()));
   // Public interface (report.h, README).
   EXPECT_EQ(keys_of(doc),
             "file,cutoff_date,settlement_date,payment_delay_days,curve,assumptions,target,bid,"
@@ -295,7 +267,7 @@ TEST(PriceJson, KeysInTheDocumentedOrder) {
 TEST(PriceJson, ValuesUnroundedInTheirUnits) {
   const BidResult r = sample_result();
   const Ordered doc =
-      Ordered::parse(price_json(sample_tape(), quoted_curve(), sample_request(), r));
+      Ordered::parse(price_json(two_loan_tape(), quoted_curve(), sample_request(), r));
   EXPECT_EQ(doc["file"], "pool.csv");
   EXPECT_EQ(doc["cutoff_date"], "2026-12-01");
   EXPECT_EQ(doc["settlement_date"], "2026-12-15");
@@ -350,7 +322,7 @@ TEST(PriceJson, FlatCurveAndNonFiniteNumbers) {
   BidRequest request = sample_request();
   request.target = BidTarget::spread;
   request.value = 0.0125;
-  const Ordered doc = Ordered::parse(price_json(sample_tape(), flat_curve(), request, r));
+  const Ordered doc = Ordered::parse(price_json(two_loan_tape(), flat_curve(), request, r));
   EXPECT_EQ(doc["curve"]["flat"], true);
   EXPECT_EQ(doc["curve"]["flat_rate"].get<double>(), 0.045);
   EXPECT_TRUE(doc["curve"]["quotes"].empty());
@@ -362,7 +334,7 @@ TEST(PriceJson, FlatCurveAndNonFiniteNumbers) {
 TEST(PriceJson, AssumptionsReadBackAsAnAssumptionsFile) {
   const BidRequest request = sample_request();
   const Ordered doc =
-      Ordered::parse(price_json(sample_tape(), flat_curve(), request, sample_result()));
+      Ordered::parse(price_json(two_loan_tape(), flat_curve(), request, sample_result()));
   const Assumptions back = parse_assumptions(doc["assumptions"].dump(), "report");
   const Assumptions& a = request.assumptions;
   EXPECT_EQ(back.prepay, a.prepay);

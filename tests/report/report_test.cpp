@@ -13,6 +13,7 @@
 #include "report/format.h"
 #include "report/report.h"
 #include "tape/tape.h"
+#include "tests/report/report_support.h"
 #include "tests/support/loans.h"
 
 namespace poolbid {
@@ -20,7 +21,9 @@ namespace {
 
 using nlohmann::json;
 
+using testing_support::contains;
 using testing_support::kNaN;
+using testing_support::line_starting;
 using testing_support::make_loans;
 
 // Seven data rows and a blank line: four accepted (one with a warning), three rejected. Row 5's
@@ -63,21 +66,6 @@ void expect_keys(const json& object, const std::vector<std::string>& keys) {
 
 const std::vector<std::string> kProblemKeys = {"row",    "loan_id", "field",   "column",
                                                "value",  "reason",  "severity"};
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
-
-// The first line of `text` that starts with `start`, trailing spaces and all; "" if none.
-std::string line_starting(const std::string& text, const std::string& start) {
-  std::size_t at = 0;
-  while (at < text.size()) {
-    const std::size_t end = std::min(text.find('\n', at), text.size());
-    if (text.compare(at, start.size(), start) == 0) return text.substr(at, end - at);
-    at = end + 1;
-  }
-  return "";
-}
 
 // The space-separated words of a line.
 std::vector<std::string> words(const std::string& line) {
