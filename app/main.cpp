@@ -290,6 +290,8 @@ struct CurveOption {
       file = load_yield_curve(text);
       return;
     }
+    if (text.find_first_of("eE") != std::string::npos)
+      bad_option("--curve", text, "write a flat rate as a plain percent, such as 4.25");
     const double percent = std::strtod(text.c_str(), nullptr);
     if (!(percent > -5 && percent < 30))
       bad_option("--curve", text, "a flat rate wants a percent from -5 to 30");

@@ -160,6 +160,16 @@ Rate par_yield(const YieldCurve& curve, double years) {
   return (1 - w) * at_below + w * par_coupon(df, start, above);
 }
 
+namespace {
+
+// Forwards for collection months that start before the curve's date start at that date instead:
+// the curve knows nothing earlier (and poolbid keeps no index fixings).
+Date not_before_as_of(const YieldCurve& curve, Date start) {
+  return start < curve.as_of ? curve.as_of : start;
+}
+
+}  // namespace
+
 IndexPaths index_paths(const YieldCurve& curve, std::span<const std::string> names, Date cutoff,
                        int months) {
   check_months(months, "index_paths");
@@ -168,13 +178,12 @@ IndexPaths index_paths(const YieldCurve& curve, std::span<const std::string> nam
   paths.names.assign(names.begin(), names.end());
   std::vector<CurveIndex> indexes;
   for (const std::string& name : names) indexes.push_back(index_named(curve, name));
-  if (months > 0) sample_date(curve, cutoff, "index_paths");
   DiscountMemo df(curve);
   for (const CurveIndex& index : indexes) {
     std::vector<Rate>& rates = paths.rates.emplace_back();
     rates.reserve(static_cast<std::size_t>(months));
     for (int t = 1; t <= months; ++t) {
-      const ql::Date start = detail::ql_date(collection_start(cutoff, t));
+      const ql::Date start = detail::ql_date(not_before_as_of(curve, collection_start(cutoff, t)));
       rates.push_back(
           simple_forward(df, start, start + ql::Period(index.tenor_months, ql::Months)) +
           index.spread);
@@ -187,13 +196,13 @@ std::vector<Rate> mortgage_rate_path(const YieldCurve& curve, Date cutoff, int m
   check_months(months, "mortgage_rate_path");
   std::vector<Rate> path;
   if (months == 0) return path;
-  const ql::Date first = sample_date(curve, cutoff, "mortgage_rate_path");
   path.reserve(static_cast<std::size_t>(months));
-  if (cutoff.day() > std::chrono::day{28}) {
+  if (cutoff.day() > std::chrono::day{28} || cutoff < curve.as_of) {
     // Month ends: a start on the 28th of February rolls its coupons from the 28th, not the 31st.
+    // A cut-off before the curve's date: the months before it read the curve from as_of.
     DiscountMemo df(curve);
     for (int t = 1; t <= months; ++t) {
-      const ql::Date start = detail::ql_date(collection_start(cutoff, t));
+      const ql::Date start = detail::ql_date(not_before_as_of(curve, collection_start(cutoff, t)));
       path.push_back(par_coupon(df, start, kMortgageParHalves) + curve.mortgage_spread);
     }
     return path;
@@ -201,6 +210,7 @@ std::vector<Rate> mortgage_rate_path(const YieldCurve& curve, Date cutoff, int m
   // No day of the cut-off month is missing from any month, so start + 6i months is
   // cutoff + (t - 1 + 6i) months: read each monthly discount factor once, then the same sums as
   // par_coupon in the same order (the results are identical, only faster).
+  const ql::Date first = detail::ql_date(cutoff);
   const ql::YieldTermStructure& term_structure = structure(curve);
   std::vector<double> grid(static_cast<std::size_t>(months + 6 * kMortgageParHalves));
   for (std::size_t m = 0; m < grid.size(); ++m)

@@ -260,7 +260,8 @@ Rate forward_rate(const YieldCurve& curve, Date start, int months);
 Rate par_yield(const YieldCurve& curve, double years);
 
 // ARM index rates by projection month for the indexes a tape names: rates[k][t - 1] is index
-// names[k]'s forward rate (plus spread) over its tenor starting collection_start(cutoff, t).
+// names[k]'s forward rate (plus spread) over its tenor starting collection_start(cutoff, t), or
+// starting at as_of for a collection month that starts before the curve's date.
 // Throws CurveError if the curve does not define a name (a flat curve defines every name).
 struct IndexPaths {
   int months = 0;
@@ -270,7 +271,8 @@ struct IndexPaths {
 IndexPaths index_paths(const YieldCurve& curve, std::span<const std::string> names, Date cutoff,
                        int months);
 // The market mortgage rate by projection month: the forward 10-year par yield starting
-// collection_start(cutoff, t), plus the curve's mortgage_spread. [t - 1] = month t.
+// collection_start(cutoff, t) (or as_of, if later), plus the curve's mortgage_spread.
+// [t - 1] = month t.
 std::vector<Rate> mortgage_rate_path(const YieldCurve& curve, Date cutoff, int months);
 
 // A bad curve file or curve option: `source` the file or option, `key` the JSON key ("" for an

@@ -123,6 +123,21 @@ TEST(IndexPaths, FlatCurveProjectsAnyNameAtItsOneMonthForward) {
   }
 }
 
+TEST(IndexPaths, MonthsBeforeTheCurveDateReadFromIt) {
+  // A cut-off a month before the curve's date: month 1 starts before as_of, so its forward starts
+  // at as_of; month 2 on are the usual forwards. The mortgage-rate path likewise.
+  const YieldCurve curve = flat_yield_curve(0.04, ymd(2026, 12, 10));
+  const Date cutoff = ymd(2026, 11, 1);
+  const std::vector<std::string> names{"SOFR30A"};
+  const IndexPaths paths = index_paths(curve, names, cutoff, 3);
+  EXPECT_DOUBLE_EQ(paths.rates[0][0], forward_rate(curve, ymd(2026, 12, 10), 1));
+  EXPECT_DOUBLE_EQ(paths.rates[0][1], forward_rate(curve, ymd(2026, 12, 10), 1));
+  EXPECT_DOUBLE_EQ(paths.rates[0][2], forward_rate(curve, ymd(2027, 1, 1), 1));
+  const std::vector<Rate> mortgage = mortgage_rate_path(curve, cutoff, 3);
+  EXPECT_DOUBLE_EQ(mortgage[0], mortgage[1]);
+  EXPECT_NEAR(mortgage[2], mortgage[0], 2e-5);  // flat curve: day counts only
+}
+
 TEST(IndexPaths, CurveIndexesReadTheirTenorPlusSpread) {
   const YieldCurve curve = parse_yield_curve(
       R"({"as_of": "2026-12-01", "quotes": [{"kind": "deposit", "tenor": "1M", "rate": 4},
@@ -220,9 +235,8 @@ TEST(Sampling, DatesBeforeTheCurveAreErrors) {
   EXPECT_THROW(forward_rate(curve, kAsOf, 0), std::invalid_argument);
   const std::vector<Date> dates{kAsOf, before};
   EXPECT_THROW(discount_factors(curve, dates), std::invalid_argument);
-  const std::vector<std::string> names{"SOFR30A"};
-  EXPECT_THROW(index_paths(curve, names, before, 12), std::invalid_argument);
-  EXPECT_THROW(mortgage_rate_path(curve, before, 12), std::invalid_argument);
+  // Paths from a cut-off before the curve read their early months from as_of instead (see
+  // IndexPaths.MonthsBeforeTheCurveDateReadFromIt); a negative month count is still an error.
   EXPECT_THROW(mortgage_rate_path(curve, kAsOf, -1), std::invalid_argument);
 }
 
