@@ -205,12 +205,24 @@ std::string risk_section(const BidResult& r, const BidRequest& request) {
       {"effective duration", years(r.effective_duration), ""},
       {"effective convexity", years(r.effective_convexity), ""},
       {"DV01", detail::dollars(r.dv01), "per 1 bp fall in the curve"},
-      {"ARM loans on coupon paths", count_text(r.arm_loans),
-       "coupons from the curve's index forwards"},
   };
+  for (const BidResult::KeyRateDuration& k : r.key_rate_durations)
+    table.rows.push_back({fmt::format("key-rate duration {}y", short_number(k.years)),
+                          years(k.duration), "that tenor's zero rate alone, as a triangle"});
+  table.rows.push_back({"ARM loans on coupon paths", count_text(r.arm_loans),
+                        "coupons from the curve's index forwards"});
   return fmt::format("risk (curve moved up and down {} bp, cash flows re-projected, Z-spread "
                      "held)\n{}",
                      short_number(request.shock_bp), detail::render(table));
+}
+
+// [{"years": 2, "duration": 0.41}, ...] in key-tenor order.
+Json key_rate_json(const BidResult& r) {
+  Json out = Json::array();
+  for (const BidResult::KeyRateDuration& k : r.key_rate_durations)
+    out.push_back(Json{{"years", number_or_null(k.years)},
+                       {"duration", number_or_null(k.duration)}});
+  return out;
 }
 
 // The pricing cut-off; the tape's, when it has one, must be the same day.
@@ -368,6 +380,7 @@ std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidR
                     {"effective_convexity", number_or_null(r.effective_convexity)},
                     {"dv01", number_or_null(r.dv01)},
                     {"shock_bp", number_or_null(request.shock_bp)},
+                    {"key_rate_durations", key_rate_json(r)},
                     {"arm_loans", r.arm_loans}}},
       {"loans_priced", Json{{"loans", tape.rows_accepted()},
                             {"cutoff_balance", number_or_null(r.cutoff_balance)},

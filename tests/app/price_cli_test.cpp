@@ -252,7 +252,8 @@ void expect_documented_price_json(const Ordered& doc, const std::string& context
             (Keys{"credit_cost_bp", "expected_loss", "expected_loss_pct"}))
       << context;
   EXPECT_EQ(keys_of(doc.at("risk")),
-            (Keys{"effective_duration", "effective_convexity", "dv01", "shock_bp", "arm_loans"}))
+            (Keys{"effective_duration", "effective_convexity", "dv01", "shock_bp",
+                  "key_rate_durations", "arm_loans"}))
       << context;
   EXPECT_EQ(keys_of(doc.at("loans_priced")), (Keys{"loans", "cutoff_balance", "net_coupon",
                                                    "rows_read", "rows_rejected", "upb_rejected"}))
@@ -265,8 +266,15 @@ void expect_documented_price_json(const Ordered& doc, const std::string& context
 
   // Every measure a number (null only where a value could not be computed; none here).
   for (const char* section : {"bid", "loss_adjusted", "no_loss", "credit", "risk"})
-    for (const auto& [key, value] : doc.at(section).items())
+    for (const auto& [key, value] : doc.at(section).items()) {
+      if (key == "key_rate_durations") {
+        ASSERT_EQ(value.size(), 4u) << context;  // 2, 5, 10 and 30 years
+        for (const Ordered& k : value)
+          EXPECT_EQ(keys_of(k), (Keys{"years", "duration"})) << context;
+        continue;
+      }
       EXPECT_TRUE(value.is_number()) << context << ": " << section << "." << key << " = " << value;
+    }
 
   const Ordered& bid = doc.at("bid");
   const double upb = doc.at("loans_priced").at("cutoff_balance").get<double>();

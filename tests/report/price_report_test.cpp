@@ -257,7 +257,8 @@ TEST(PriceJson, KeysInTheDocumentedOrder) {
   EXPECT_EQ(keys_of(doc["loss_adjusted"]), view);
   EXPECT_EQ(keys_of(doc["no_loss"]), view);
   EXPECT_EQ(keys_of(doc["credit"]), "credit_cost_bp,expected_loss,expected_loss_pct");
-  EXPECT_EQ(keys_of(doc["risk"]), "effective_duration,effective_convexity,dv01,shock_bp,arm_loans");
+  EXPECT_EQ(keys_of(doc["risk"]),
+            "effective_duration,effective_convexity,dv01,shock_bp,key_rate_durations,arm_loans");
   EXPECT_EQ(keys_of(doc["loans_priced"]),
             "loans,cutoff_balance,net_coupon,rows_read,rows_rejected,upb_rejected");
   ASSERT_EQ(doc["rejected"].size(), 3u);  // every rejecting problem; the warning left out
