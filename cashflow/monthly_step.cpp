@@ -5,6 +5,8 @@
 #include <cmath>
 #include <limits>
 #include <memory>
+#include <utility>
+#include <vector>
 
 #include "cashflow/engine.h"
 
@@ -50,12 +52,19 @@ struct Block {
 // Month of a coupon change that never comes: past any loan's last month.
 constexpr int kNoChange = std::numeric_limits<int>::max();
 
-// A rate-changing loan in the block: its slot, its changes still to come (changes[next .. end)),
-// the month of the next one (kNoChange once none is left) and its current note rate.
-struct CouponSlot {
-  std::size_t slot, next, end;
+// The block's coupon changes, merged into one list in month order (slot order within a month),
+// so a month costs only its own changes however many ARMs the block holds.
+struct CouponEvent {
   int month;
-  double annual_rate;
+  std::uint32_t slot;
+  double rate;  // annual
+};
+struct BlockCoupons {
+  std::vector<CouponEvent> events;
+  std::vector<CouponEvent> unsorted;     // gathered loan by loan, before the month sort
+  std::vector<std::uint32_t> per_month;  // counting-sort buckets
+  std::size_t next = 0;         // events[next ..] are still to come
+  double annual[kBlockLoans];   // each slot's current note rate (listed slots only)
 };
 
 void load_block(const EngineInputs& in, std::size_t first, std::size_t count, Block& b) {
@@ -92,43 +101,51 @@ void load_block(const EngineInputs& in, std::size_t first, std::size_t count, Bl
   }
 }
 
-// Rate-changing loans of the block with any change, in slot order.
-std::vector<CouponSlot> coupon_slots(const EngineInputs& in, const Block& b) {
-  std::vector<CouponSlot> slots;
-  if (!in.coupons) return slots;
+// The changes of the block's rate-changing loans, merged in month order; `out` is reused.
+void coupon_events(const EngineInputs& in, const Block& b, BlockCoupons& out) {
+  out.events.clear();
+  out.unsorted.clear();
+  out.next = 0;
+  if (!in.coupons) return;
   const CouponPaths& paths = *in.coupons;
   const auto& listed = paths.loans;
   auto it = std::lower_bound(listed.begin(), listed.end(), b.first);
   for (; it != listed.end() && *it < b.first + b.count; ++it) {
     const auto k = static_cast<std::size_t>(it - listed.begin());
-    const std::size_t next = paths.begin[k], end = paths.begin[k + 1];
-    if (next == end) continue;
-    slots.push_back({*it - b.first, next, end, paths.changes[next].month,
-                     in.loans->note_rate[*it]});
+    const auto slot = static_cast<std::uint32_t>(*it - b.first);
+    out.annual[slot] = in.loans->note_rate[*it];
+    for (std::size_t c = paths.begin[k]; c < paths.begin[k + 1]; ++c)
+      if (paths.changes[c].month <= b.months)  // later changes never apply
+        out.unsorted.push_back({paths.changes[c].month, slot, paths.changes[c].rate});
   }
-  return slots;
+  // Counting sort by month: stable, so changes of one month stay in slot order.
+  out.per_month.assign(static_cast<std::size_t>(b.months) + 2, 0);
+  for (const CouponEvent& e : out.unsorted) ++out.per_month[static_cast<std::size_t>(e.month)];
+  std::uint32_t start = 0;
+  for (std::uint32_t& bucket : out.per_month) start += std::exchange(bucket, start);
+  out.events.resize(out.unsorted.size());
+  for (const CouponEvent& e : out.unsorted)
+    out.events[out.per_month[static_cast<std::size_t>(e.month)]++] = e;
+}
+
+// Month of the next change still to come, kNoChange if none.
+int next_change(const BlockCoupons& coupons) {
+  return coupons.next < coupons.events.size() ? coupons.events[coupons.next].month : kNoChange;
 }
 
 // Before month t: a loan whose coupon changes in month t takes the new rate and, if that moves its
 // rate, its payment re-amortises the beginning balance over the months left (or, while
 // interest-only, the payment it will start with). Returns the month of the block's next change.
-int apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, int t) {
-  const std::vector<CouponChange>& changes = in.coupons->changes;
-  int due = kNoChange;
-  for (CouponSlot& c : slots) {
-    if (c.month != t) {
-      due = std::min(due, c.month);
-      continue;
-    }
-    const double annual = changes[c.next++].rate;
-    c.month = c.next < c.end ? changes[c.next].month : kNoChange;
-    due = std::min(due, c.month);
-    if (annual == c.annual_rate) continue;
-    c.annual_rate = annual;
-    const std::size_t i = c.slot;
+int apply_coupon_changes(const EngineInputs& in, Block& b, BlockCoupons& coupons, int t) {
+  for (; coupons.next < coupons.events.size() && coupons.events[coupons.next].month == t;
+       ++coupons.next) {
+    const CouponEvent& e = coupons.events[coupons.next];
+    const std::size_t i = e.slot;
+    if (e.rate == coupons.annual[i]) continue;
+    coupons.annual[i] = e.rate;
     const int remaining = in.loans->remaining_term[b.first + i];
     const int io_end = static_cast<int>(b.io_end[i]);
-    b.rate[i] = annual / 12.0;
+    b.rate[i] = e.rate / 12.0;
     b.net[i] = b.rate[i] - b.fee[i];
     if (t <= io_end) {
       b.io_factor[i] = remaining > io_end ? annuity_factor(b.rate[i], remaining - io_end) : 0.0;
@@ -136,7 +153,7 @@ int apply_coupon_changes(const EngineInputs& in, Block& b, std::vector<CouponSlo
       b.payment[i] = b.balance[i] * annuity_factor(b.rate[i], remaining - t + 1);
     }
   }
-  return due;
+  return next_change(coupons);
 }
 
 // One month of the loop for one block. Template flags: which curves need a per-loan table lookup
@@ -283,14 +300,14 @@ constexpr MonthStep kMonthSteps[8] = {
 // The block's months. A loan-age curve needs a lookup per loan only while some loan in the block
 // is younger than the curve's last changing month; after that every loan reads the held value.
 template <bool kTotals>
-void run_block(const EngineInputs& in, Block& b, std::vector<CouponSlot>& slots, ChunkSums& sums) {
+void run_block(const EngineInputs& in, Block& b, BlockCoupons& coupons, ChunkSums& sums) {
   const int youngest = b.count ? *std::min_element(b.age, b.age + b.count) : 0;
   auto per_loan = [youngest](const MonthlyTable& table, int t) {
     return table.clock == CurveClock::loan_age && youngest + t < table.hold;
   };
-  int due = slots.empty() ? kNoChange : 1;  // month of the next coupon change
+  int due = next_change(coupons);  // month of the next coupon change
   for (int t = 1; t <= b.months; ++t) {
-    if (t >= due) due = apply_coupon_changes(in, b, slots, t);
+    if (t >= due) due = apply_coupon_changes(in, b, coupons, t);
     const int key = (per_loan(in.smm, t) ? 4 : 0) + (per_loan(in.mdr, t) ? 2 : 0) +
                     (per_loan(in.severity, t) ? 1 : 0);
     kMonthSteps<kTotals>[key](in, b, t, sums);
@@ -316,10 +333,11 @@ int final_month(const LoanArrays& loans, std::size_t i) {
 void project_chunk(const EngineInputs& in, std::size_t first, std::size_t last, ChunkSums& sums) {
   const auto loop = in.loan_totals ? run_block<true> : run_block<false>;
   auto block = std::make_unique<Block>();
+  auto coupons = std::make_unique<BlockCoupons>();
   for (std::size_t start = first; start < last; start += kBlockLoans) {
     load_block(in, start, std::min(kBlockLoans, last - start), *block);
-    std::vector<CouponSlot> slots = coupon_slots(in, *block);
-    loop(in, *block, slots, sums);
+    coupon_events(in, *block, *coupons);
+    loop(in, *block, *coupons, sums);
     if (in.loan_totals) store_totals(*block, *in.loan_totals);
   }
 }
