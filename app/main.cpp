@@ -230,6 +230,7 @@ struct PriceArgs {
   std::string settle;
   std::string loans;  // "" = none
   double shock_bp = 25;
+  std::string key_rates = "2,5,10,30";
   unsigned threads = 0;
   int delay_days = 17;
 
@@ -262,8 +263,14 @@ struct PriceArgs {
                    "curve move for effective duration and convexity, bp")
         ->check(CLI::Range(0.01, 500.0))
         ->capture_default_str();
+    cmd.add_option("--key-rates", key_rates,
+                   "key-rate duration tenors in years, ascending (2,5,10,30), or none")
+        ->capture_default_str();
     add_threads_and_delay(cmd, threads, delay_days);
   }
+
+  // --key-rates as years: "none" is no tenor. Throws TapeError (bad_option) on anything else.
+  std::vector<double> key_rate_years() const;
 };
 
 // An option value that is unusable (exit 5).
@@ -398,6 +405,27 @@ int run_cashflows(const CashflowArgs& args) {
   return tape.rows_rejected > 0 ? kRowsRejected : kOk;
 }
 
+std::vector<double> PriceArgs::key_rate_years() const {
+  std::vector<double> years;
+  if (key_rates == "none") return years;
+  std::string_view rest = key_rates;
+  while (true) {
+    const std::size_t comma = rest.find(',');
+    const std::string_view item = rest.substr(0, comma);
+    double value = 0;
+    const auto [ptr, ec] = std::from_chars(item.data(), item.data() + item.size(), value);
+    if (item.empty() || ec != std::errc() || ptr != item.data() + item.size() ||
+        !(value > 0 && value <= 50) || (!years.empty() && value <= years.back()))
+      bad_option("--key-rates", key_rates,
+                 "wants tenors in years above 0 and at most 50, ascending, separated by commas "
+                 "(2,5,10,30), or none");
+    years.push_back(value);
+    if (comma == std::string_view::npos) break;
+    rest.remove_prefix(comma + 1);
+  }
+  return years;
+}
+
 std::string iso_text(Date d) {
   return fmt::format("{:04d}-{:02d}-{:02d}", static_cast<int>(d.year()),
                      static_cast<unsigned>(d.month()), static_cast<unsigned>(d.day()));
@@ -423,6 +451,7 @@ int run_price(const PriceArgs& args) {
         throw UsageError(fmt::format("--loans '{}' would overwrite {}", args.loans, what));
   }
   const ReadOptions read_options = args.tape.read_options();
+  const std::vector<double> key_rate_years = args.key_rate_years();
   const Assumptions assumptions = args.assumption.assumptions();
   std::optional<Date> settle;
   if (!args.settle.empty()) {
@@ -465,6 +494,7 @@ int run_price(const PriceArgs& args) {
   request.settlement = Settlement{cutoff, *settle, args.delay_days};
   request.assumptions = assumptions;
   request.shock_bp = args.shock_bp;
+  request.key_rate_years = key_rate_years;
   request.threads = args.threads;
   request.loan_values = !args.loans.empty();
   const BidResult result = price_pool(tape.loans, curve, request);

@@ -520,6 +520,36 @@ TEST_F(PriceCli, FlatCurveIsANumberInPercentDatedAtTheCutoff) {
   EXPECT_NEAR(number_after(text.out, "clean price "), 98.5, 1e-12) << text.out;
 }
 
+TEST_F(PriceCli, KeyRateTenorsAreChosenOrTurnedOff) {
+  const std::vector<std::string> base = join({kStrictTape, {"--curve", "4.25", "--price", "98.5"}});
+  const Ordered standard = price_json(base);
+  ASSERT_TRUE(standard.is_object());
+  const Ordered& keys = standard.at("risk").at("key_rate_durations");
+  ASSERT_EQ(keys.size(), 4u);
+  double sum = 0;
+  for (const Ordered& k : keys) sum += k.at("duration").get<double>();
+  // identity: the key-rate triangles add up to a parallel shift (to first order in the shock).
+  EXPECT_NEAR(sum, standard.at("risk").at("effective_duration").get<double>(), 2e-3);
+
+  const Ordered none = price_json(join({base, {"--key-rates", "none"}}));
+  ASSERT_TRUE(none.is_object());
+  EXPECT_TRUE(none.at("risk").at("key_rate_durations").empty());
+  EXPECT_EQ(none.at("risk").at("effective_duration"), standard.at("risk").at("effective_duration"));
+
+  const Ordered three = price_json(join({base, {"--key-rates", "1,3.5,7"}}));
+  ASSERT_TRUE(three.is_object());
+  ASSERT_EQ(three.at("risk").at("key_rate_durations").size(), 3u);
+  EXPECT_EQ(three.at("risk").at("key_rate_durations")[1].at("years").get<double>(), 3.5);
+
+  for (const std::string bad : {"5,2", "x", "2,,5", "0", "60", ""}) {
+    const std::vector<std::string> args = join({{"price"}, base, {"--key-rates", bad}});
+    const Outcome r = poolbid(args);
+    EXPECT_EQ(r.exit_code, kUnusableInput) << shown(args) << "\n" << r;
+    EXPECT_NE(r.err.find("--key-rates"), std::string::npos) << r;
+    EXPECT_EQ(r.out, "");
+  }
+}
+
 // A flat rate written with an exponent is the same number of percent as without (or refused).
 TEST_F(PriceCli, FlatCurveWithAnExponentIsNeverAnotherRate) {
   const Ordered plain = price_json(join({kStrictTape, {"--curve", "4.25", "--price", "98.5"}}));
