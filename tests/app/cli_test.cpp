@@ -50,23 +50,8 @@ bool rows_add_up(const json& doc) {
          count_at(doc, "rows_accepted") + count_at(doc, "rows_rejected");
 }
 
-// A scratch folder of its own per test (tests run in parallel), removed afterwards.
-class Cli : public testing::Test {
- protected:
-  void SetUp() override {
-    const auto* info = testing::UnitTest::GetInstance()->current_test_info();
-    scratch_ = fs::temp_directory_path() /
-               ("poolbid_cli_test_" + std::to_string(::getpid()) + "_" + info->name());
-    fs::remove_all(scratch_);
-    fs::create_directories(scratch_);
-  }
-  void TearDown() override { fs::remove_all(scratch_); }
-
-  // Runs poolbid with `args` from the repository root (relative paths are the README's).
-  Outcome poolbid(const std::vector<std::string>& args) const { return run_poolbid(args); }
-
-  fs::path scratch_;
-};
+// Each test has a scratch folder of its own (CommandTest).
+class Cli : public CommandTest {};
 
 // ---- Reading tapes that are fine ----------------------------------------------------------------
 

@@ -150,21 +150,9 @@ void expect_one_error_line(const Outcome& r, int code, const std::vector<std::st
         << context << ": stderr does not say '" << needle << "': " << r.err;
 }
 
-// A scratch folder of its own per test (tests run in parallel), removed afterwards.
-class PriceCli : public testing::Test {
+// Each test has a scratch folder of its own (CommandTest).
+class PriceCli : public CommandTest {
  protected:
-  void SetUp() override {
-    const auto* info = testing::UnitTest::GetInstance()->current_test_info();
-    scratch_ = fs::temp_directory_path() /
-               ("poolbid_price_cli_test_" + std::to_string(::getpid()) + "_" + info->name());
-    fs::remove_all(scratch_);
-    fs::create_directories(scratch_);
-  }
-  void TearDown() override { fs::remove_all(scratch_); }
-
-  // Runs poolbid with `args` from the repository root (relative paths are the README's).
-  Outcome poolbid(const std::vector<std::string>& args) const { return run_poolbid(args); }
-
   // Runs `price ... --json`, expects `code`, an empty stderr and a document that parses; returns
   // it (null after a failure).
   Ordered price_json(const std::vector<std::string>& args, int code = kOk) const {
@@ -218,8 +206,6 @@ class PriceCli : public testing::Test {
       names.insert(e.path().filename().string());
     return names;
   }
-
-  fs::path scratch_;
 };
 
 // ---- The JSON document --------------------------------------------------------------------------

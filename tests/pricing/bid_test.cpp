@@ -54,6 +54,18 @@ std::vector<TestLoan> same_coupon_loans() {
   return loans;
 }
 
+// A 5/1-style ARM on SOFR30A: margin 2.75%, 2% periodic cap, first reset at loan month 61, then
+// yearly.
+TestLoan& make_arm(TestLoan& t) {
+  t.amortization = Amortization::arm;
+  t.arm_index = "SOFR30A";
+  t.arm_margin = 0.0275;
+  t.arm_periodic_cap = 0.02;
+  t.arm_first_reset = 61;
+  t.arm_reset_period = 12;
+  return t;
+}
+
 Assumptions with_defaults() {
   Assumptions a;
   a.prepay = standard_curve(CurveShape::psa, 1.5);
@@ -206,14 +218,8 @@ TEST(Bid, MixedPoolRiskEqualsFullReprojection) {
     TestLoan t{.id = "A" + std::to_string(i), .upb = 200'000.0 + 10'000.0 * i, .rate = 0.06};
     t.age = 50 + i;
     t.remaining = 360 - t.age;
-    t.amortization = Amortization::arm;
-    t.arm_index = "SOFR30A";
-    t.arm_margin = 0.0275;
-    t.arm_periodic_cap = 0.02;
     t.arm_lifetime_cap = 0.11;
-    t.arm_first_reset = 61;
-    t.arm_reset_period = 12;
-    mixed.push_back(t);
+    mixed.push_back(make_arm(t));
   }
   const LoanArrays loans = make_loans(mixed);
   const YieldCurve curve = flat_yield_curve(0.042, kCutoff);
@@ -267,14 +273,7 @@ TEST(Bid, ResultsDoNotDependOnThreads) {
                .rate = 0.05 + 0.00125 * (i % 40)};
     t.age = i % 120;
     t.remaining = 360 - t.age;
-    if (i % 7 == 0) {
-      t.amortization = Amortization::arm;
-      t.arm_index = "SOFR30A";
-      t.arm_margin = 0.0275;
-      t.arm_periodic_cap = 0.02;
-      t.arm_first_reset = 61;
-      t.arm_reset_period = 12;
-    }
+    if (i % 7 == 0) make_arm(t);
     many.push_back(t);
   }
   const LoanArrays loans = make_loans(many);

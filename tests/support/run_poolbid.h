@@ -5,6 +5,7 @@
 #include <gtest/gtest.h>
 #include <stdlib.h>
 #include <sys/wait.h>
+#include <unistd.h>
 
 #include <cstdlib>
 #include <filesystem>
@@ -59,5 +60,24 @@ inline Outcome run_poolbid(const std::vector<std::string>& args) {
   fs::remove_all(scratch, ignored);
   return r;
 }
+
+// A fixture with a scratch folder of its own per test (tests run in parallel), removed afterwards;
+// `poolbid(args)` runs the command from the repository root (relative paths are the README's).
+class CommandTest : public testing::Test {
+ protected:
+  void SetUp() override {
+    const auto* info = testing::UnitTest::GetInstance()->current_test_info();
+    scratch_ = std::filesystem::temp_directory_path() /
+               ("poolbid_" + std::string(info->test_suite_name()) + "_" +
+                std::to_string(::getpid()) + "_" + info->name());
+    std::filesystem::remove_all(scratch_);
+    std::filesystem::create_directories(scratch_);
+  }
+  void TearDown() override { std::filesystem::remove_all(scratch_); }
+
+  Outcome poolbid(const std::vector<std::string>& args) const { return run_poolbid(args); }
+
+  std::filesystem::path scratch_;
+};
 
 }  // namespace poolbid::testing_support
