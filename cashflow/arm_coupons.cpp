@@ -111,12 +111,22 @@ double reset_rate(double previous, double index_rate, const ResetTerms& terms) {
   return std::max(r, terms.fee);
 }
 
+// Projection month of loan i's first reset. A reset falling in projection month 1 is taken to be
+// in the tape's note rate already (the tape gives the rate of the next payment, and an index is
+// read well before the change takes effect), so the first reset the path applies is month 2 or
+// later: month 1 always pays the tape's rate, as accrued interest assumes.
+int first_projected_reset(const LoanArrays& l, std::size_t i) {
+  const int period = l.arm_reset_period[i];
+  const int first = next_reset(l.age[i], l.arm_first_reset[i], period) - l.age[i];
+  return first == 1 ? first + period : first;
+}
+
 // Changes the engine needs at most for loan i: one per reset month within `months`, plus month 1.
 // Zero for a loan whose terms check_terms refuses (the main pass throws for it).
 std::size_t most_changes(const LoanArrays& l, std::size_t i, int months) {
   const int period = l.arm_reset_period[i];
   if (period < 1 || l.arm_first_reset[i] < 1) return 0;
-  const int first = next_reset(l.age[i], l.arm_first_reset[i], period) - l.age[i];
+  const int first = first_projected_reset(l, i);
   return 1 + (first <= months ? static_cast<std::size_t>((months - first) / period + 1) : 0);
 }
 
@@ -191,8 +201,8 @@ CouponPaths arm_coupon_paths(const LoanArrays& loans, const IndexPaths& index) {
 
     const std::vector<Rate>& path = index.rates[static_cast<std::size_t>(rows[name])];
     const int known = static_cast<int>(std::min(path.size(), static_cast<std::size_t>(months)));
-    const int age = loans.age[i], period = loans.arm_reset_period[i];
-    const int first = next_reset(age, loans.arm_first_reset[i], period) - age;
+    const int period = loans.arm_reset_period[i];
+    const int first = first_projected_reset(loans, i);
     const ResetTerms terms = reset_terms(loans, i);
     double held = loans.note_rate[i];                      // the rate the engine starts with
     double rate = std::max(held, loans.servicing_fee[i]);  // the path's rate before any reset

@@ -2,7 +2,7 @@
 // index paths and the market mortgage rate. Dates become QuantLib dates in one place
 // (curves/ql_dates.h) and every day count is QuantLib's. Paths read each date's discount factor
 // from the curve once. Tested: tests/curves/yield_curve_test.cpp,
-// tests/curves/curve_paths_test.cpp.
+// tests/curves/curve_sampling_test.cpp.
 #include <fmt/core.h>
 
 #include <algorithm>
@@ -12,6 +12,7 @@
 #include <ql/termstructures/yieldtermstructure.hpp>
 #include <ql/time/daycounters/actual360.hpp>
 #include <ql/time/daycounters/actual365fixed.hpp>
+#include <ql/time/daycounters/thirty360.hpp>
 #include <ql/time/period.hpp>
 #include <stdexcept>
 #include <string>
@@ -81,12 +82,19 @@ Rate simple_forward(DiscountMemo& df, const ql::Date& start, const ql::Date& end
 }
 
 // Semiannual par coupon of a bond from `start` with `halves` coupons on start + 6i months, each
-// accruing 0.5 (30/360): 2 (DF(start) - DF(t_n)) / sum DF(t_i). Dividing every DF by DF(start)
-// makes it a forward par yield and cancels.
+// accruing its 30/360 (bond basis) fraction tau_i, 0.5 but for month ends such as August 31 to
+// February 28: (DF(start) - DF(t_n)) / sum tau_i DF(t_i). Dividing every DF by DF(start) makes
+// it a forward par yield and cancels.
 Rate par_coupon(DiscountMemo& df, const ql::Date& start, int halves) {
+  const ql::Thirty360 thirty_360(ql::Thirty360::BondBasis);
   double annuity = 0;
-  for (int i = 1; i <= halves; ++i) annuity += df(start + ql::Period(6 * i, ql::Months));
-  return 2 * (df(start) - df(start + ql::Period(6 * halves, ql::Months))) / annuity;
+  ql::Date previous = start;
+  for (int i = 1; i <= halves; ++i) {
+    const ql::Date coupon = start + ql::Period(6 * i, ql::Months);
+    annuity += thirty_360.yearFraction(previous, coupon) * df(coupon);
+    previous = coupon;
+  }
+  return (df(start) - df(previous)) / annuity;
 }
 
 std::string defined_names(const YieldCurve& curve) {

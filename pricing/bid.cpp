@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <optional>
+#include <stdexcept>
 #include <string>
 #include <vector>
 
@@ -34,6 +35,16 @@ Projection project_with(const LoanArrays& loans, const std::optional<CouponPaths
   options.discount = discount;
   options.coupons = coupons ? &*coupons : nullptr;
   return project_pool(loans, a, options);
+}
+
+// to += sign x from, month by month. Every projection ends within the horizon (the longest
+// remaining term plus the lag); a longer one would be a bug here, not a fact of the pool.
+void add_cash(std::vector<double>& to, const std::vector<double>& from, double sign) {
+  if (from.size() > to.size())
+    throw std::logic_error(fmt::format("price_pool: a projection of {} months past the {}-month "
+                                       "horizon",
+                                       from.size(), to.size()));
+  for (std::size_t t = 0; t < from.size(); ++t) to[t] += sign * from[t];
 }
 
 Assumptions without_defaults(Assumptions a) {
@@ -149,8 +160,8 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   // cash(moved) = cash - ARM cash(curve) + ARM cash(moved).
   const double shock = request.shock_bp / 1e4;
   const std::size_t months = static_cast<std::size_t>(horizon);
-  std::vector<double> steady_cash(cash.begin(), cash.end());  // what the shift leaves alone
-  steady_cash.resize(months, 0.0);
+  std::vector<double> steady_cash(months, 0.0);  // what the shift leaves alone
+  add_cash(steady_cash, pool.cash_flow, 1.0);
   LoanArrays arm_subset;
   const LoanArrays* movers = &loans;  // the loans whose flows read the curve
   if (result.arm_loans > 0 && result.arm_loans < loans.size()) {
@@ -165,8 +176,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
         project_with(arm_subset, coupons_on(arm_subset, curve, request, horizon),
                      request.assumptions, request, false)
             .pool;
-    for (std::size_t t = 0; t < arms_here.cash_flow.size(); ++t)
-      steady_cash[t] -= arms_here.cash_flow[t];
+    add_cash(steady_cash, arms_here.cash_flow, -1.0);
   } else if (result.arm_loans > 0) {
     std::fill(steady_cash.begin(), steady_cash.end(), 0.0);  // every loan moves
   }
@@ -177,7 +187,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
       const PoolFlows p = project_with(*movers, coupons_on(*movers, moved, request, horizon),
                                        request.assumptions, request, false)
                               .pool;
-      for (std::size_t t = 0; t < p.cash_flow.size(); ++t) moved_cash[t] += p.cash_flow[t];
+      add_cash(moved_cash, p.cash_flow, 1.0);
     }
     return pv_at_spread(moved_cash, payment_grid(moved, settlement, horizon),
                         result.loss_adjusted.z_spread);

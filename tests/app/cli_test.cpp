@@ -17,6 +17,7 @@
 #include <utility>
 #include <vector>
 
+#include "tests/support/command_constants.h"
 #include "tests/support/csv_text.h"
 #include "tests/support/run_poolbid.h"
 
@@ -28,14 +29,6 @@ using nlohmann::json;
 
 const fs::path kSource = POOLBID_SOURCE_DIR;
 
-// Exit codes, as the README's table gives them.
-constexpr int kOk = 0, kUsage = 2, kRowsRejected = 3, kUnusableTape = 4, kUnusableInput = 5,
-              kCannotWrite = 6;
-
-const std::string kStrict = "demo-pools/brindlecote-strict.csv";
-const std::string kLoose = "demo-pools/sallowmere-loose.csv";
-const std::string kLooseMap = "demo-pools/sallowmere.map.json";
-const std::string kBadTape = "demo-pools/bad-tape.csv";
 const std::string kCorpus = "tests/tape/malformed/";
 
 std::size_t line_count(const std::string& text) {

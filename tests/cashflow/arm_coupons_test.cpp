@@ -223,10 +223,17 @@ TEST(ArmCouponPaths, LoanPastItsFirstResetResetsOnTheSchedule) {
   expect_series_near("age 61",
                      only_path(make_loans({bare_arm(0.06, 0.025, 61, 61, 12)}), one_index(index)),
                      runs({{11, 0.06}, {12, 0.047}, {7, 0.059}}), 0, 1e-12);
-  // hand-computed: age 60, the first reset (61) is projection month 1; every 6 months after.
+  // hand-computed: age 60, the first reset (61) falls in projection month 1, which the tape's
+  // note rate already includes; the path resets from month 7, every 6 months.
   expect_series_near("age 60",
                      only_path(make_loans({bare_arm(0.06, 0.025, 60, 61, 6)}), one_index(index)),
-                     runs({{6, 0.036}, {6, 0.042}, {6, 0.048}, {6, 0.054}, {6, 0.060}}), 0, 1e-12);
+                     runs({{6, 0.06}, {6, 0.042}, {6, 0.048}, {6, 0.054}, {6, 0.060}}), 0, 1e-12);
+  // hand-computed: a monthly-reset ARM past its first reset changes from month 2 on.
+  std::vector<double> monthly = {0.06};
+  for (int t = 2; t <= 30; ++t) monthly.push_back(0.035 + t / 1000.0);
+  expect_series_near("monthly",
+                     only_path(make_loans({bare_arm(0.06, 0.025, 70, 61, 1)}), one_index(index)),
+                     monthly, 0, 1e-12);
 }
 
 TEST(ArmCouponPaths, ResetAfterTheIndexPathGetsItsLastValue) {

@@ -2,6 +2,7 @@
 // par yields and their interpolation, ARM index paths, the market mortgage rate path, errors, and
 // the same answers from several threads at once.
 #include <gtest/gtest.h>
+#include <ql/time/daycounters/thirty360.hpp>
 
 #include <algorithm>
 #include <chrono>
@@ -208,19 +209,27 @@ TEST(MortgageRatePath, MonthEndCutoffRollsFromEachStart) {
   const std::vector<Rate> path = mortgage_rate_path(curve, cutoff, 14);
   // identity: month 2 starts 2027-02-28 and its coupons fall on the 28th (Aug 28, Feb 28, ...);
   // month 3 starts 2027-03-31 and rolls from the 31st (Sep 30, Mar 31, ...); month 14 starts on
-  // 2028-02-29 and ends on 2038-02-28
+  // 2028-02-29 and ends on 2038-02-28. Each coupon accrues its 30/360 (bond basis) fraction.
+  const QuantLib::Thirty360 thirty_360(QuantLib::Thirty360::BondBasis);
+  auto ql_date = [](Date d) {
+    return QuantLib::Date(static_cast<QuantLib::Day>(static_cast<unsigned>(d.day())),
+                          static_cast<QuantLib::Month>(static_cast<unsigned>(d.month())),
+                          static_cast<QuantLib::Year>(static_cast<int>(d.year())));
+  };
   for (int t : {2, 3, 14}) {
     const Date start = collection_start(cutoff, t);
     double annuity = 0;
-    Date end{};
+    Date end{}, previous = start;
     for (int i = 1; i <= 20; ++i) {
       const std::chrono::year_month month =
           std::chrono::year_month(start.year(), start.month()) + std::chrono::months{6 * i};
       end = Date{month.year(), month.month(),
                  std::min(start.day(), (month.year() / month.month() / std::chrono::last).day())};
-      annuity += discount_factor(curve, end);
+      annuity += thirty_360.yearFraction(ql_date(previous), ql_date(end)) *
+                 discount_factor(curve, end);
+      previous = end;
     }
-    const double par = 2 * (discount_factor(curve, start) - discount_factor(curve, end)) / annuity;
+    const double par = (discount_factor(curve, start) - discount_factor(curve, end)) / annuity;
     EXPECT_NEAR(path[t - 1], par + curve.mortgage_spread, 1e-15) << t;
   }
 }

@@ -120,6 +120,20 @@ void expect_reprices(const YieldCurve& curve, bool daily) {
   }
 }
 
+TEST(YieldCurveFile, ParYieldsRepriceFromAMonthEnd) {
+  // A curve dated August 31: coupons fall on February 28 and August 31, and 30/360 (bond basis)
+  // gives those half-years 178 and 182 days, not 180. par_yield weights each coupon by its
+  // fraction, so it gives back the par-yield quotes the curve was built from.
+  const YieldCurve curve = parse_yield_curve(R"({"as_of": "2026-08-31", "quotes": [
+      {"kind": "par_yield", "tenor": "1Y", "rate": 3.60},
+      {"kind": "par_yield", "tenor": "3Y", "rate": 3.62},
+      {"kind": "par_yield", "tenor": "10Y", "rate": 4.10}]})",
+                                             "month-end.json");
+  for (const CurveQuote& quote : curve.quotes)
+    // identity: the par coupon of the curve's own par bond is its quote
+    EXPECT_NEAR(par_yield(curve, quote.months / 12.0), quote.rate, 1e-10) << quote.tenor;
+}
+
 TEST(YieldCurveFile, ReadsEveryKey) {
   const YieldCurve curve = parse_yield_curve(kMixed, "mixed.json");
   EXPECT_EQ(curve.source, "mixed.json");

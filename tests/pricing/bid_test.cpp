@@ -242,6 +242,36 @@ TEST(Bid, MixedPoolRiskEqualsFullReprojection) {
   EXPECT_NEAR(r.effective_duration, (down - up) / (2 * base * 0.0025), 1e-9);
   EXPECT_NEAR(r.effective_convexity, (up + down - 2 * base) / (base * 0.0025 * 0.0025), 1e-5);
   EXPECT_NEAR(r.dv01, (down - up) / 50, 1e-6 * r.dv01);
+
+  // Key-rate durations likewise, each tenor's triangle alone.
+  ASSERT_EQ(r.key_rate_durations.size(), request.key_rate_years.size());
+  for (std::size_t k = 0; k < request.key_rate_years.size(); ++k) {
+    CurveShift bump{0, request.key_rate_years, std::vector<double>(4, 0.0)};
+    bump.key_bp[k] = 25;
+    const double key_up = pv_on(shift_curve(curve, bump));
+    bump.key_bp[k] = -25;
+    const double key_down = pv_on(shift_curve(curve, bump));
+    EXPECT_NEAR(r.key_rate_durations[k].duration, (key_down - key_up) / (2 * base * 0.0025), 1e-9)
+        << request.key_rate_years[k];
+  }
+}
+
+TEST(Bid, AccruedInterestAndCleanPriceByHand) {
+  // hand-computed: accrued = sum of balance x (note rate - servicing) x 16 / 360 for settlement
+  // on 2026-12-17 (30/360: 16 days after the 2026-12-01 cut-off); clean = dirty - accrued.
+  const std::vector<TestLoan> pool = level_pay_loans();
+  double balance = 0, accrued = 0;
+  for (const TestLoan& t : pool) {
+    balance += t.upb;
+    accrued += t.upb * (t.rate - t.servicing) * 16 / 360;
+  }
+  const BidResult r = price_pool(make_loans(pool), flat_yield_curve(0.042, kCutoff),
+                                 yield_request(0.0725, with_defaults()));
+  EXPECT_NEAR(r.accrued, accrued, 1e-6);
+  EXPECT_NEAR(r.cutoff_balance, balance, 1e-6);
+  EXPECT_NEAR(r.clean_price, r.dirty_price - accrued / balance * 100, 1e-10);
+  EXPECT_NEAR(r.clean_value, r.dirty_value - accrued, 1e-6);
+  EXPECT_GT(r.accrued, 0);
 }
 
 TEST(Bid, KeyRateDurationsAddUpToTheEffectiveDuration) {
