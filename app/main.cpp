@@ -6,7 +6,9 @@
 #include <charconv>
 #include <chrono>
 #include <cstdio>
+#include <cerrno>
 #include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <functional>
 #include <fstream>
@@ -54,46 +56,71 @@ struct WriteError : std::runtime_error {
 };
 
 // Files written through a temporary `PATH.partial` each and renamed into place only when every one
-// was written, so a failure leaves no partial file and no file without its companions. `write`
-// fills a file's stream. Throws WriteError naming the file.
+// was written, so a failure leaves no partial file and no file without its companions. A symbolic
+// link is followed (the file it names is replaced, not the link); a path that exists and is not a
+// regular file (a device, a pipe) is written directly, since renaming over it would replace it.
+// `write` fills a file's stream. Throws WriteError naming the file and the reason.
 struct OutputFile {
   std::string path;
   std::function<void(std::ostream&)> write;
 };
 
+std::string write_failure(const std::string& path) {
+  const int error = errno;
+  return error != 0 ? fmt::format("cannot write '{}': {}", path, std::strerror(error))
+                    : fmt::format("cannot write '{}'", path);
+}
+
 void write_files_whole(const std::vector<OutputFile>& files) {
   std::error_code ignored;
-  std::vector<std::string> staged;  // temporaries written so far
+  std::vector<std::string> staged;   // temporaries written so far ("" = written in place)
+  std::vector<std::string> targets;  // where each file ends up
   auto remove_all = [&](const std::vector<std::string>& paths) {
-    for (const std::string& p : paths) std::filesystem::remove(p, ignored);
+    for (const std::string& p : paths)
+      if (!p.empty()) std::filesystem::remove(p, ignored);
   };
   for (const OutputFile& file : files) {
-    const std::string temp = file.path + ".partial";
-    std::ofstream out(temp, std::ios::binary | std::ios::trunc);
-    if (!out) {
-      remove_all(staged);
-      throw WriteError(fmt::format("cannot write '{}'", file.path));
+    std::string target = file.path;
+    std::error_code ec;
+    if (std::filesystem::is_symlink(file.path, ec)) {
+      const std::filesystem::path resolved = std::filesystem::weakly_canonical(file.path, ec);
+      if (!ec) target = resolved.string();
     }
-    staged.push_back(temp);
+    const std::filesystem::file_status status = std::filesystem::status(target, ec);
+    const bool in_place =
+        std::filesystem::exists(status) && !std::filesystem::is_regular_file(status) &&
+        !std::filesystem::is_directory(status);
+    const std::string temp = in_place ? target : target + ".partial";
+    errno = 0;
+    std::ofstream out(temp, std::ios::binary | (in_place ? std::ios::out : std::ios::trunc));
+    if (!out) {
+      const std::string message = write_failure(file.path);
+      remove_all(staged);
+      throw WriteError(message);
+    }
+    staged.push_back(in_place ? std::string() : temp);
+    targets.push_back(target);
     file.write(out);
     out.flush();
     if (!out) {
+      const std::string message = write_failure(file.path);
       out.close();
       remove_all(staged);
-      throw WriteError(fmt::format("cannot write '{}' (disk full?)", file.path));
+      throw WriteError(message);
     }
   }
   std::vector<std::string> renamed;  // in place already; removed again if a later rename fails
   for (std::size_t i = 0; i < files.size(); ++i) {
+    if (staged[i].empty()) continue;  // written in place
     std::error_code ec;
-    std::filesystem::rename(staged[i], files[i].path, ec);
+    std::filesystem::rename(staged[i], targets[i], ec);
     if (ec) {
       remove_all(renamed);
       remove_all(std::vector<std::string>(staged.begin() + static_cast<std::ptrdiff_t>(i),
                                           staged.end()));
       throw WriteError(fmt::format("cannot write '{}': {}", files[i].path, ec.message()));
     }
-    renamed.push_back(files[i].path);
+    renamed.push_back(targets[i]);
   }
 }
 
@@ -260,7 +287,7 @@ struct PriceArgs {
     cmd.add_option("--loans", loans,
                    "write each loan's value at the pool's yield as CSV to FILE");
     cmd.add_option("--shock", shock_bp,
-                   "curve move for effective duration and convexity, bp")
+                   "curve move for effective duration, convexity and key-rate durations, bp")
         ->check(CLI::Range(0.01, 500.0))
         ->capture_default_str();
     cmd.add_option("--key-rates", key_rates,
@@ -294,6 +321,14 @@ struct CurveOption {
   }
   void load() {
     if (!flat()) {
+      const bool number_like =
+          text.find_first_of("0123456789") != std::string::npos &&
+          text.find_first_not_of("+-.,% 0123456789") == std::string::npos;
+      std::error_code ec;
+      if (number_like && !std::filesystem::exists(text, ec))
+        bad_option("--curve", text,
+                   "a flat rate is a plain number of percent, such as 4.25 (no % sign); anything "
+                   "else names a curve file");
       file = load_yield_curve(text);
       return;
     }
@@ -369,11 +404,14 @@ int run_cashflows(const CashflowArgs& args) {
   options.threads = args.threads;
   options.loan_totals = !args.loans.empty();
   std::optional<CouponPaths> coupons;
+  std::optional<YieldCurve> arm_curve;
   if (!args.curve.empty()) {
-    coupons = arm_coupon_paths(tape.loans, curve_option.curve(cutoff), cutoff,
+    arm_curve = curve_option.curve(cutoff);
+    coupons = arm_coupon_paths(tape.loans, *arm_curve, cutoff,
                                projection_horizon(tape.loans, assumptions));
     options.coupons = &*coupons;
   }
+  const YieldCurve* arm_curve_used = arm_curve ? &*arm_curve : nullptr;
   const Projection projection = project_pool(tape.loans, assumptions, options);
 
   std::vector<OutputFile> files;
@@ -385,9 +423,9 @@ int run_cashflows(const CashflowArgs& args) {
                        out << cashflow_csv(projection.pool, cutoff, args.delay_days);
                      }});
   } else if (args.tape.json) {
-    document = cashflow_json(tape, assumptions, projection.pool, args.delay_days);
+    document = cashflow_json(tape, assumptions, projection.pool, args.delay_days, arm_curve_used);
   } else {
-    document = cashflow_text(tape, assumptions, projection.pool, args.delay_days);
+    document = cashflow_text(tape, assumptions, projection.pool, args.delay_days, arm_curve_used);
   }
   if (args.loans == "-") {
     document = loan_flows_csv(tape.loans, projection.loans);
@@ -461,6 +499,12 @@ int run_price(const PriceArgs& args) {
   curve_option.load();
 
   const TapeRead tape = read_tape(args.tape.tape, read_options);
+  if (tape.loans.size() == 0) {
+    // Nothing to price, but every rejected row is still listed.
+    fmt::print(stderr, "poolbid: {}: no accepted loan to price; nothing written\n{}", tape.file,
+               rejected_rows_text(tape));
+    return tape.rows_rejected > 0 ? kRowsRejected : kUnusableInput;
+  }
   const Date cutoff = require_cutoff(tape, "prices");
   const YieldCurve curve = curve_option.curve(cutoff);
   using std::chrono::sys_days;
@@ -474,11 +518,18 @@ int run_price(const PriceArgs& args) {
                            curve.source));
 
   const Date first_payment = payment_date(cutoff, 1, args.delay_days);
-  if (!(sys_days{*settle} < sys_days{first_payment}))
-    bad_option("--settle", args.settle.empty() ? iso_text(*settle) : args.settle,
+  if (!(sys_days{*settle} < sys_days{first_payment})) {
+    if (args.settle.empty())
+      throw CurveError(curve.source, "as_of", iso_text(curve.as_of),
+                       fmt::format("{}: the curve's date {} (the settlement date when --settle is "
+                                   "not given) is on or after the first payment date {}; use a "
+                                   "curve dated before it",
+                                   curve.source, iso_text(curve.as_of), iso_text(first_payment)));
+    bad_option("--settle", args.settle,
                fmt::format("settlement on or after the first payment date {}: move the cut-off "
                            "date",
                            iso_text(first_payment)));
+  }
 
   BidRequest request;
   if (args.target_yield) {
@@ -535,7 +586,8 @@ int run(int argc, char** argv) {
 
   PriceArgs price_args;
   CLI::App* price = app.add_subcommand(
-      "price", "value the accepted loans on a yield curve and solve the bid for a target");
+      "price", "value the accepted loans on a yield curve and solve the bid for a target "
+               "(exactly one of --target-yield, --target-spread, --price)");
   price_args.add_to(*price);
 
   DemoTapeOptions demo;

@@ -31,6 +31,8 @@ say "Sallowmere Funding: the same, but 200% SDA default for the looser underwrit
 # yield. The tapes carry the same coupons, terms and balances; Sallowmere's looser underwriting is
 # given twice Brindlecote's default curve, so its expected loss and credit cost are higher and its
 # bid lower -- the difference between the two clean prices is the price of that underwriting.
+# Delinquent loans follow the curves here; add --delinquent-default to have loans 90+ days
+# delinquent or in foreclosure default in month 1 (Sallowmere has 26 of them).
 say "Brindlecote Home Loans: the bid at a 6.50% loss-adjusted yield (150% PSA, 100% SDA, 40% severity)"
 "$poolbid" price "$here/brindlecote-strict.csv" --cutoff 2026-12-01 \
   --curve "$here/curve-2026-12-01.json" --settle 2026-12-17 \

@@ -54,7 +54,19 @@ Assumptions without_defaults(Assumptions a) {
 }
 
 std::string price_text(double pv, double balance) {
-  return fmt::format("{:.6f}% of UPB", balance > 0 ? pv / balance * 100 : 0.0);
+  return fmt::format("{:.3f}% of UPB", balance > 0 ? pv / balance * 100 : 0.0);
+}
+
+// $1,234,567.89, for messages.
+std::string dollars(double x) {
+  const std::string digits = fmt::format("{:.2f}", std::fabs(x));
+  const std::size_t whole = digits.size() - 3;  // before ".cc"
+  std::string out = x < 0 ? "-$" : "$";
+  for (std::size_t i = 0; i < whole; ++i) {
+    if (i > 0 && (whole - i) % 3 == 0) out += ',';
+    out += digits[i];
+  }
+  return out + digits.substr(whole);
 }
 
 // Every measure of one view at the bid's dirty value `pv`.
@@ -63,16 +75,16 @@ PoolView read_view(const PoolFlows& pool, const PaymentGrid& grid, const YieldCu
   const std::span<const double> cash(pool.cash_flow);
   PoolView view;
   const std::optional<Rate> cfy = yield_for_pv(cash, grid, pv);
-  if (!cfy)
+  if (!cfy) {
+    // The solve looks between -99% and +100% a year: say which end the price is beyond.
+    const bool too_high = pv > pv_at_yield(cash, grid, -0.99);
     throw PricingError(fmt::format(
-        "no cash-flow yield prices the {} flows at a dirty value of {} ({}): the flows total "
-        "${:.2f}",
-        which, fmt::format("${:.2f}", pv), price_text(pv, balance),
-        [&] {
-          double total = 0;
-          for (double c : cash) total += c;
-          return total;
-        }()));
+        "no cash-flow yield prices the {} flows at a dirty value of {} ({}): {}", which,
+        dollars(pv), price_text(pv, balance),
+        too_high ? "the yield would be below -99% a year (the price is above what the loans "
+                   "could pay)"
+                 : "the yield would be above 100% a year (the price is too low to solve)"));
+  }
   const std::optional<double> z = spread_for_pv(cash, grid, pv);
   if (!z)
     throw PricingError(fmt::format("no Z-spread over the curve prices the {} flows at {}", which,

@@ -88,8 +88,15 @@ PoolTotals totals(const PoolFlows& p) {
 
 // ---- Text report --------------------------------------------------------------------------------
 
-std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days) {
+std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days,
+                             const YieldCurve* arm_curve) {
   detail::TextTable table{{}, {Align::left, Align::left}, detail::assumption_rows(a)};
+  table.rows.push_back(
+      {"ARM coupons",
+       arm_curve ? fmt::format("reset on the index forwards of {} (as of {})",
+                               detail::display_text(arm_curve->source, 120),
+                               detail::iso_date(arm_curve->as_of))
+                 : std::string("held at the cut-off note rate (no --curve)")});
   table.rows.push_back(
       {"payment delay",
        fmt::format("{} (month 1 paid {})",
@@ -284,12 +291,12 @@ void write_loan_flows_csv(std::ostream& stream, const LoanArrays& loans, const L
 }
 
 std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
-                          const PoolFlows& pool, int delay_days) {
+                          const PoolFlows& pool, int delay_days, const YieldCurve* arm_curve) {
   const Date cutoff = cutoff_of(tape);
   check_sizes(pool);
   std::string out = fmt::format("poolbid cashflows: {}\ncut-off date: {}\n\nassumptions\n",
                                 detail::display_text(tape.file, 200), detail::iso_date(cutoff));
-  out += assumptions_text(assumptions, cutoff, delay_days);
+  out += assumptions_text(assumptions, cutoff, delay_days, arm_curve);
   out += "\npool\n";
   out += summary_text(tape, pool, assumptions, cutoff, delay_days);
 
@@ -310,7 +317,7 @@ std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
 }
 
 std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
-                          const PoolFlows& pool, int delay_days) {
+                          const PoolFlows& pool, int delay_days, const YieldCurve* arm_curve) {
   const Date cutoff = cutoff_of(tape);
   check_sizes(pool);
   const PoolTotals t = totals(pool);
@@ -346,6 +353,9 @@ std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
       {"cutoff_date", detail::iso_date(cutoff)},
       {"payment_delay_days", delay_days},
       {"assumptions", detail::assumptions_json(assumptions)},
+      {"arm_curve", arm_curve ? Json{{"source", arm_curve->source},
+                                     {"as_of", detail::iso_date(arm_curve->as_of)}}
+                              : Json(nullptr)},
       {"summary", std::move(summary)},
       {"months", std::move(months)},
       {"rejected", detail::rejected_json(tape)},

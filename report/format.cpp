@@ -248,8 +248,10 @@ std::string rejects_heading(const TapeRead& tape, std::string_view done) {
 std::string rejects_and_caution(const TapeRead& tape, std::string_view done) {
   std::string out = "\n";
   if (tape.rows_rejected == 0) {
-    out += fmt::format("rejected rows: none; all {} read are {}.\n",
-                       count_of(tape.rows_read, "row", "rows"), done);
+    out += tape.rows_read == 1
+               ? fmt::format("rejected rows: none; the 1 row read is {}.\n", done)
+               : fmt::format("rejected rows: none; all {} read are {}.\n",
+                             count_of(tape.rows_read, "row", "rows"), done);
   } else {
     out += fmt::format("rejected rows: {}:\n", rejects_heading(tape, done));
     out += rejects_table(tape);

@@ -212,7 +212,10 @@ std::string risk_section(const BidResult& r, const BidRequest& request) {
   table.rows.push_back({"ARM loans on coupon paths", count_text(r.arm_loans),
                         "coupons from the curve's index forwards"});
   return fmt::format("risk (curve moved up and down {} bp, cash flows re-projected, Z-spread "
-                     "held)\n{}",
+                     "held; durations in years)\n{}"
+                     "  (the prepayment and default curves do not read rates: only ARM coupons "
+                     "move with the curve,\n   so the negative convexity refinancing gives "
+                     "mortgages is not in these figures)\n",
                      short_number(request.shock_bp), detail::render(table));
 }
 

@@ -52,12 +52,17 @@ inline constexpr std::string_view kLoanFlowsCsvHeader =
     "gross_interest,servicing,net_interest,advanced_interest,cash_flow,wal_years,last_month";
 // Terminal report: the assumptions, pool totals, the months 1-12 then every 12th and the last,
 // every rejected row, the caution.
+// `arm_curve`: the curve whose index forwards reset the ARMs (`--curve`), or null when ARMs kept
+// their cut-off note rate; the report says which.
 std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
-                          const PoolFlows& pool, int delay_days);
-// {"file", "cutoff_date", "payment_delay_days", "assumptions", "summary", "months", "rejected",
-//  "caution"}; "months" entries have the CSV's keys, numbers unrounded.
+                          const PoolFlows& pool, int delay_days,
+                          const YieldCurve* arm_curve = nullptr);
+// {"file", "cutoff_date", "payment_delay_days", "assumptions", "arm_curve", "summary", "months",
+//  "rejected", "caution"}; "arm_curve" is {"source", "as_of"} or null; "months" entries have the
+//  CSV's keys, numbers unrounded.
 std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
-                          const PoolFlows& pool, int delay_days);
+                          const PoolFlows& pool, int delay_days,
+                          const YieldCurve* arm_curve = nullptr);
 
 // `poolbid price`: the bid and what it means. Keys, columns and units are documented in the README
 // and are a public interface.

@@ -35,8 +35,12 @@ void check_options(const ReadOptions& options, std::string_view file) {
   if (options.max_record_bytes == 0) bad("max_record_bytes must be above 0");
   if (!(options.term_tolerance_months >= 0)) bad("term_tolerance_months must be 0 or more");
   if (options.cutoff && !options.cutoff->ok()) bad("the cut-off date (--cutoff) is not a date");
-  if (options.cutoff && options.cutoff->day() != std::chrono::day{1})
-    bad("the cut-off date (--cutoff) must be the first day of a month");  // DESIGN.md section 5
+  if (options.cutoff && options.cutoff->day() != std::chrono::day{1})  // DESIGN.md section 5
+    bad(fmt::format("the cut-off date (--cutoff) {:04d}-{:02d}-{:02d} must be the first day of a "
+                    "month",
+                    static_cast<int>(options.cutoff->year()),
+                    static_cast<unsigned>(options.cutoff->month()),
+                    static_cast<unsigned>(options.cutoff->day())));
   if (options.default_servicing_fee &&
       !(*options.default_servicing_fee >= 0 && *options.default_servicing_fee < 0.25))
     bad(fmt::format("the default servicing fee (--servicing-fee) {} must be from 0% to below 25%",

@@ -533,7 +533,8 @@ TEST_F(Cli, CashflowsJsonHasTheDocumentedKeys) {
   const Ordered doc = Ordered::parse(r.out);
   using Keys = std::vector<std::string>;
   EXPECT_EQ(keys_of(doc), (Keys{"file", "cutoff_date", "payment_delay_days", "assumptions",
-                                "summary", "months", "rejected", "caution"}));
+                                "arm_curve", "summary", "months", "rejected", "caution"}));
+  EXPECT_TRUE(doc["arm_curve"].is_null());  // no --curve: ARMs keep their note rate
   EXPECT_EQ(keys_of(doc["assumptions"]), (Keys{"prepay", "default", "severity", "lag_months",
                                                "advancing", "delinquent_default"}));
   EXPECT_EQ(keys_of(doc["summary"]),

@@ -499,6 +499,40 @@ TEST_F(PriceCli, FlatCurveIsANumberInPercentDatedAtTheCutoff) {
   EXPECT_NEAR(number_after(text.out, "clean price "), 98.5, 1e-12) << text.out;
 }
 
+TEST_F(PriceCli, EveryRowRejectedListsThemAndExitsThree) {
+  // The bad tape's header and two of its rejected rows (negative balance, note rate 31%).
+  const std::vector<std::string> bad = lines_of(read_file(kSource / kBadTape));
+  std::string text = bad[0] + "\n";
+  for (const std::string& line : bad)
+    if (line.find(",-") != std::string::npos) text += line + "\n";
+  const fs::path tape = write_scratch("all-bad.csv", text);
+  const std::vector<std::string> args = {"price", tape.string(), "--cutoff", kCutoff, "--curve",
+                                         "4",     "--price",     "98"};
+  const Outcome r = poolbid(args);
+  EXPECT_EQ(r.exit_code, kRowsRejected) << shown(args) << "\n" << r;
+  EXPECT_EQ(r.out, "");
+  EXPECT_NE(r.err.find("no accepted loan to price"), std::string::npos) << r;
+  EXPECT_NE(r.err.find("row"), std::string::npos) << r;
+}
+
+TEST_F(PriceCli, LoansThroughASymlinkOrIntoAPipe) {
+  // A symbolic link is followed: the file it names gets the values, the link stays a link.
+  const fs::path real = write_scratch("real.csv", "");
+  const fs::path link = scratch_ / "link.csv";
+  fs::create_symlink(real, link);
+  const std::vector<std::string> args = {"price",  kStrict, "--cutoff", kCutoff,      "--curve",
+                                         "4",      "--price", "98",     "--loans", link.string()};
+  const Outcome r = poolbid(args);
+  ASSERT_EQ(r.exit_code, kOk) << r;
+  EXPECT_TRUE(fs::is_symlink(link));
+  EXPECT_EQ(lines_of(read_file(real)).size(), 2001u);  // header + 2,000 loans
+  // A path that is not a regular file (here /dev/null) is written, not replaced.
+  const Outcome null_out = poolbid({"price", kStrict, "--cutoff", kCutoff, "--curve", "4",
+                                    "--price", "98", "--loans", "/dev/null"});
+  ASSERT_EQ(null_out.exit_code, kOk) << null_out;
+  EXPECT_TRUE(fs::is_character_file("/dev/null"));
+}
+
 TEST_F(PriceCli, KeyRateTenorsAreChosenOrTurnedOff) {
   const std::vector<std::string> base = join({kStrictTape, {"--curve", "4.25", "--price", "98.5"}});
   const Ordered standard = price_json(base);
@@ -986,6 +1020,26 @@ int first_reset_month(int age, int first_reset, int period) {
     if (age_then >= first_reset && (age_then - first_reset) % period == 0) return t;
   }
   return 0;
+}
+
+TEST_F(CashflowsCurve, ReportsSayWhereTheArmCouponsCameFrom) {
+  const std::vector<std::string> base = {"cashflows", kStrict, "--cutoff", kCutoff};
+  const Outcome plain = poolbid(base);
+  ASSERT_EQ(plain.exit_code, kOk) << plain;
+  EXPECT_NE(plain.out.find("held at the cut-off note rate (no --curve)"), std::string::npos);
+  std::vector<std::string> with_curve = base;
+  with_curve.insert(with_curve.end(), {"--curve", kSwapCurve});
+  const Outcome text = poolbid(with_curve);
+  ASSERT_EQ(text.exit_code, kOk) << text;
+  EXPECT_NE(text.out.find("reset on the index forwards of " + kSwapCurve + " (as of 2026-12-01)"),
+            std::string::npos)
+      << text.out.substr(0, 1500);
+  with_curve.push_back("--json");
+  const Outcome json = poolbid(with_curve);
+  ASSERT_EQ(json.exit_code, kOk) << json;
+  const Ordered doc = Ordered::parse(json.out);
+  EXPECT_EQ(doc.at("arm_curve").at("source"), kSwapCurve);
+  EXPECT_EQ(doc.at("arm_curve").at("as_of"), "2026-12-01");
 }
 
 TEST_F(CashflowsCurve, ArmsResetOnTheCurvesIndexForwards) {

@@ -194,7 +194,7 @@ TEST(CashflowJson, HasEveryDocumentedKey) {
   const json doc = json::parse(cashflow_json(two_loan_tape(), sample_assumptions(),
                                              two_month_pool(), 17));
   const std::vector<std::string> top = {"file",    "cutoff_date", "payment_delay_days",
-                                        "assumptions", "summary", "months",
+                                        "assumptions", "arm_curve", "summary", "months",
                                         "rejected", "caution"};
   std::vector<std::string> keys;
   for (const auto& [key, value] : doc.items()) keys.push_back(key);
