@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <numeric>
 #include <optional>
 #include <stdexcept>
 #include <string>
@@ -184,10 +185,14 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
         arm_indexes.push_back(static_cast<std::uint32_t>(i));
     arm_subset = select_loans(loans, arm_indexes);
     movers = &arm_subset;
+    // The base curve's coupon paths list every ARM in loan order: the subset's are the same
+    // changes with the loans renumbered 0, 1, ... (no second build).
+    std::optional<CouponPaths> subset_coupons = coupons;
+    if (subset_coupons->loans != arm_indexes)
+      throw std::logic_error("price_pool: the coupon paths do not list every ARM in loan order");
+    std::iota(subset_coupons->loans.begin(), subset_coupons->loans.end(), std::uint32_t{0});
     const PoolFlows arms_here =
-        project_with(arm_subset, coupons_on(arm_subset, curve, request, horizon),
-                     request.assumptions, request, false)
-            .pool;
+        project_with(arm_subset, subset_coupons, request.assumptions, request, false).pool;
     add_cash(steady_cash, arms_here.cash_flow, -1.0);
   } else if (result.arm_loans > 0) {
     std::fill(steady_cash.begin(), steady_cash.end(), 0.0);  // every loan moves

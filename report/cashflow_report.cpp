@@ -212,16 +212,11 @@ Json month_json(const PoolFlows& p, int t, Date cutoff, int delay_days) {
 // ---- Loans CSV ----------------------------------------------------------------------------------
 
 void check_sizes(const LoanArrays& loans, const LoanFlows& f) {
-  const std::size_t n = loans.size();
-  for (const std::vector<double>* v :
-       {&f.sched_principal, &f.prepayment, &f.defaults, &f.loss, &f.recovery, &f.gross_interest,
-        &f.servicing, &f.net_interest, &f.advanced_interest, &f.cash_flow, &f.wal_years}) {
-    if (v->size() != n)
-      throw std::invalid_argument(fmt::format(
-          "loan flows: a column has {} loans, the tape {}: was loan_totals set?", v->size(), n));
-  }
-  if (f.last_month.size() != n || loans.loan_id.size() != n || loans.row.size() != n ||
-      loans.seller.size() != n)
+  detail::check_loan_columns(
+      "loan flows (was loan_totals set?)", loans,
+      {&f.sched_principal, &f.prepayment, &f.defaults, &f.loss, &f.recovery, &f.gross_interest,
+       &f.servicing, &f.net_interest, &f.advanced_interest, &f.cash_flow, &f.wal_years});
+  if (f.last_month.size() != loans.size())
     throw std::invalid_argument("loan flows: columns of different lengths");
 }
 

@@ -364,6 +364,18 @@ std::vector<std::string> csv_seller_names(const LoanArrays& loans) {
   return names;
 }
 
+void check_loan_columns(std::string_view what, const LoanArrays& loans,
+                        std::initializer_list<const std::vector<double>*> columns) {
+  const std::size_t n = loans.size();
+  for (const std::vector<double>* v : columns)
+    if (v->size() != n)
+      throw std::invalid_argument(fmt::format("{}: a column has {} loans, the tape {}", what,
+                                              v->size(), n));
+  if (loans.loan_id.size() != n || loans.row.size() != n || loans.seller.size() != n ||
+      loans.note_rate.size() != n)
+    throw std::invalid_argument(fmt::format("{}: tape columns of different lengths", what));
+}
+
 void put_loan_cells(CsvBuffer& out, const LoanArrays& loans,
                     const std::vector<std::string>& sellers, std::size_t i) {
   put_csv_text(out, loans.loan_id[i]);

@@ -7,6 +7,7 @@
 #include <functional>
 #include <iosfwd>
 #include <optional>
+#include <initializer_list>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -102,6 +103,11 @@ Json rejected_json(const TapeRead& tape);
 // ---- CSV ----------------------------------------------------------------------------------------
 // The loans CSVs are built in memory: a million lines of cells appended without a string each.
 using CsvBuffer = fmt::memory_buffer;
+
+// Throws std::invalid_argument ("<what>: ...") unless every column in `columns` and the tape's
+// loan_id, row, seller and note_rate have one entry per loan.
+void check_loan_columns(std::string_view what, const LoanArrays& loans,
+                        std::initializer_list<const std::vector<double>*> columns);
 
 // x to `decimals` places (0 to 12); a value that rounds to zero is "0.00", never "-0.00"; an
 // empty cell when x is NaN or infinite (a spreadsheet shows a blank, pandas reads NaN).

@@ -278,18 +278,10 @@ Json view_json(const PoolView& v) {
 // ---- Loans CSV ----------------------------------------------------------------------------------
 
 void check_sizes(const LoanArrays& loans, const LoanFlows& f) {
-  const std::size_t n = loans.size();
   if (f.present_value.empty())
     throw std::invalid_argument(
         "loan values: no present values; price the pool with loan values requested");
-  for (const std::vector<double>* v : {&f.present_value, &f.loss, &f.wal_years}) {
-    if (v->size() != n)
-      throw std::invalid_argument(fmt::format(
-          "loan values: a column of the loan flows has {} loans, the tape {}", v->size(), n));
-  }
-  if (loans.loan_id.size() != n || loans.row.size() != n || loans.seller.size() != n ||
-      loans.note_rate.size() != n)
-    throw std::invalid_argument("loan values: tape columns of different lengths");
+  detail::check_loan_columns("loan values", loans, {&f.present_value, &f.loss, &f.wal_years});
 }
 
 // Loans [first, last) appended to `out`, one line each.
