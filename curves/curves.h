@@ -241,6 +241,7 @@ struct CurveShift {
   double parallel_bp = 0;
   std::vector<double> key_years;  // ascending, > 0
   std::vector<double> key_bp;     // one per key tenor
+  bool operator==(const CurveShift&) const = default;
 };
 YieldCurve shift_curve(const YieldCurve& curve, const CurveShift& shift);
 inline YieldCurve shift_curve(const YieldCurve& curve, double parallel_bp) {
@@ -274,6 +275,130 @@ IndexPaths index_paths(const YieldCurve& curve, std::span<const std::string> nam
 // collection_start(cutoff, t) (or as_of, if later), plus the curve's mortgage_spread.
 // [t - 1] = month t.
 std::vector<Rate> mortgage_rate_path(const YieldCurve& curve, Date cutoff, int months);
+
+// ---- Loan-level credit and prepayment model (DESIGN.md section 7) -------------------------------
+// The model's tables: a loan's default, severity and prepayment respond to its credit attributes
+// and to the economy that follows (house prices, the market mortgage rate). Every default value is
+// illustrative (README: "Loan-level model" says where each comes from); a JSON model file
+// overrides any table (format in the README). Categories are keyed by the tape's spellings
+// (tape/tape.h to_string: "full", "investor", "cash_out_refi", "condo", "30", "90+", ...), states by
+// postal code, so this header does not depend on tape/.
+
+// A step function of one number. Value v reads multiplier[k] for the first k with v < upper[k],
+// and multiplier.back() at or above the last bound (multiplier has upper.size() + 1 entries).
+// NaN (not on the tape) reads `missing`. Bounds are in the number's own units: score points,
+// decimal LTV and DTI (0.80).
+struct BandTable {
+  std::vector<double> upper;       // strictly ascending
+  std::vector<double> multiplier;  // upper.size() + 1 entries, each >= 0
+  double missing = 1.0;
+  bool operator==(const BandTable&) const = default;
+};
+std::size_t band_index(const BandTable& table, double value);  // upper.size() + 1 = missing
+double band_value(const BandTable& table, double value);
+// "< 620", "620-659", ">= 780", "missing" -- `scale` multiplies the bounds for display (100 for
+// LTV and DTI in percent).
+std::string band_label(const BandTable& table, std::size_t band, double scale = 1.0);
+
+// A category's multipliers by the tape's spelling; a category not listed (or "unknown") reads
+// `missing`.
+struct CategoryTable {
+  std::vector<std::pair<std::string, double>> multiplier;  // ("full", 1.0), ...
+  double missing = 1.0;
+  bool operator==(const CategoryTable&) const = default;
+};
+double category_value(const CategoryTable& table, std::string_view key);
+
+// A loan delinquent at cut-off: `default_share` of its balance defaults, evenly in monthly rate,
+// over its first `months` projection months (MDR = 1 - (1 - share)^(1/months)); the rest then
+// performs with its default rate times CreditModel::cured_multiplier.
+struct DelinquencyRoll {
+  double default_share = 0;  // decimal, 0..1
+  int months = 1;            // >= 1
+  bool operator==(const DelinquencyRoll&) const = default;
+};
+
+struct CreditModel {
+  // Default: MDR = base MDR(loan age) x score x updated-LTV x DTI x documentation x occupancy x
+  // purpose x property type x scenario multiplier, at most 1. Updated LTV = (balance + junior
+  // liens) / (property value x house-price index): the junior liens are (CLTV - LTV) x the
+  // property value, held; the property value is the tape's, else original balance / LTV, else
+  // current balance / assumed_ltv.
+  SpeedCurve base_default;     // CDR of the reference borrower (every multiplier 1)
+  BandTable score_default, ltv_default, dti_default;
+  CategoryTable documentation_default, occupancy_default, purpose_default, property_default;
+  std::vector<std::pair<std::string, DelinquencyRoll>> delinquency_roll;  // "30", "60", "90+", "foreclosure"
+  double cured_multiplier = 1.0;
+  double assumed_ltv = 0.80;   // decimal
+
+  // Severity of a loan defaulting in month t with liquidation `timeline` months later:
+  //   sale price   = property value x index(t + timeline) x (1 - distressed_discount)
+  //   proceeds     = sale price x (1 - sale_cost) - foreclosure_cost
+  //                  - carrying_cost x property value x index(t) x timeline / 12
+  //   severity     = max(0, 1 - proceeds / balance) + lost interest (net rate x timeline / 12)
+  // The engine pays the lost interest as DESIGN section 4 does: advanced and repaid from proceeds
+  // (advancing interest), or never paid (advancing none).
+  double distressed_discount = 0;  // decimal of the market value
+  double sale_cost = 0;            // decimal of the sale price
+  double carrying_cost = 0;        // decimal of the property value per year
+  double foreclosure_cost = 0;     // dollars per loan
+  std::vector<std::pair<std::string, int>> timeline_months;  // state postal code -> months
+  int default_timeline_months = 12;  // states not listed, and loans without a state
+
+  // Prepayment: SMM = turnover SMM(loan age) x turnover-LTV + refinance SMM(incentive) x score
+  // x refinance-LTV x burnout, times the scenario multiplier, at most 1. The incentive is the
+  // loan's note rate less the market mortgage rate (forward 10-year par + the curve's
+  // mortgage_spread). Refinance CPR = refi_max_cpr / (1 + exp(-(incentive - refi_midpoint) /
+  // refi_width)). Burnout starts at 1; each month with a positive incentive it keeps
+  // max(0, 1 - burnout x incentive in percent) of itself.
+  SpeedCurve turnover;         // CPR by loan age (seasoning ramp)
+  double refi_max_cpr = 0, refi_midpoint = 0, refi_width = 0.0025;  // decimals
+  double burnout = 0;          // per month per percentage point of incentive
+  BandTable score_refi, ltv_refi, ltv_turnover;
+
+  bool operator==(const CreditModel&) const = default;
+};
+
+// The illustrative defaults (values and their sources in the README).
+CreditModel default_credit_model();
+// A JSON model file: any key overrides `base`'s table whole; unknown keys, bad bands (bounds not
+// ascending, wrong count, negative multipliers) and bad values throw AssumptionError naming the
+// file, the key and the value.
+CreditModel load_credit_model(const std::string& path, const CreditModel& base = default_credit_model());
+CreditModel parse_credit_model(std::string_view json_text, std::string_view source_name,
+                               const CreditModel& base = default_credit_model());
+// The model as a JSON file that parse_credit_model reads back equal (for reports and for users who
+// want a starting point).
+std::string credit_model_json(const CreditModel& model);
+
+// A named economy to run the model under.
+struct Scenario {
+  std::string name;
+  std::string description;
+  // House prices from cut-off: annual change by year (decimal; the last year's change continues),
+  // or a monthly index (month 0 = cut-off; the last value holds). Exactly one is non-empty; both
+  // empty = flat prices.
+  std::vector<double> house_price_annual;
+  std::vector<double> house_price_monthly;
+  CurveShift rate_shock;       // applied to the yield curve (discounting, mortgage rate, ARM indexes)
+  double prepay_multiplier = 1.0;
+  double default_multiplier = 1.0;
+  bool operator==(const Scenario&) const = default;
+};
+// House-price index by month, [0] = 1 at cut-off, [t] = end of month t; `months` + 1 entries.
+std::vector<double> house_price_index(const Scenario& scenario, int months);
+// The shipped set, invented and plausible: "boom", "base", "mild_downturn", "severe_downturn".
+std::vector<Scenario> default_scenarios();
+// {"scenarios": [{"name": ..., "description": ..., "house_prices": {"annual": [3, 3]} or
+//   {"monthly": [100, 100.4, ...]}, "rate_shock": {"parallel_bp": 50, "key_rates": {"2": 25}},
+//   "prepay_multiplier": 1, "default_multiplier": 1}, ...]}  (annual changes in percent)
+// Throws AssumptionError naming the file, the key ("scenarios[2].house_prices") and the value.
+std::vector<Scenario> load_scenarios(const std::string& path);
+std::vector<Scenario> parse_scenarios(std::string_view json_text, std::string_view source_name);
+std::string scenarios_json(std::span<const Scenario> scenarios);
+// The scenario called `name`, or AssumptionError (source `option`) listing the names there are.
+const Scenario& find_scenario(std::span<const Scenario> scenarios, std::string_view name,
+                              std::string_view option = "--scenario");
 
 // A bad curve file or curve option: `source` the file or option, `key` the JSON key ("" for an
 // option), `value` the text at fault.
