@@ -5,6 +5,8 @@
 #pragma once
 
 #include <cstdint>
+#include <string>
+#include <string_view>
 #include <span>
 #include <vector>
 
@@ -52,9 +54,69 @@ CouponPaths arm_coupon_paths(const LoanArrays& loans, const IndexPaths& index);
 // the curve does not define.
 CouponPaths arm_coupon_paths(const LoanArrays& loans, const YieldCurve& curve, Date cutoff,
                              int months);
-// Months a projection of these loans can run: the longest remaining term plus the liquidation lag,
-// plus one. Coupon paths and discount factors that cover this many months cover every loan.
-int projection_horizon(const LoanArrays& loans, const Assumptions& assumptions);
+// ---- The loan-level model in a projection (DESIGN.md section 7) ---------------------------------
+// Underwriting factors the model reads. Attribution reads a factor "neutral": score, DTI,
+// documentation, occupancy, purpose and property type at multiplier 1; LTV at the reference
+// (multipliers 1, property value = balance / CreditModel::assumed_ltv, no junior lien);
+// delinquency as current.
+enum class Factor : std::uint8_t {
+  score, ltv, dti, documentation, occupancy, purpose, property_type, delinquency, count_
+};
+inline constexpr std::size_t kFactorCount = static_cast<std::size_t>(Factor::count_);
+std::string_view to_string(Factor f);  // "score", "ltv", ...
+using FactorSet = std::uint32_t;        // bit (1 << Factor) set = read neutral
+inline constexpr FactorSet factor_bit(Factor f) { return FactorSet{1} << static_cast<int>(f); }
+
+// Everything a projection needs to run the model: the tables, the scenario's economy and the
+// market mortgage rate on the (already shocked) yield curve. Build with model_run.
+struct ModelRun {
+  const CreditModel* model = nullptr;      // must outlive the run
+  std::string scenario;                    // name, for reports
+  std::vector<double> house_price_index;   // [t], t = 0 .. months
+  std::vector<Rate> mortgage_rate;         // [t - 1] = month t, t = 1 .. months
+  double prepay_multiplier = 1.0, default_multiplier = 1.0;
+  FactorSet neutral = 0;
+  int months = 0;                          // months covered (>= any projection's horizon)
+};
+// `curve` is the curve the scenario's economy runs on (the caller applies the scenario's rate
+// shock). `months` is usually projection_horizon(loans, assumptions, model).
+ModelRun model_run(const CreditModel& model, const Scenario& scenario, const YieldCurve& curve,
+                   Date cutoff, int months, FactorSet neutral = 0);
+
+// Why the model treats a loan as it does: each factor's band and multipliers, the property value,
+// updated LTV, timeline, severity if it defaulted in month 1, and month-1 prepayment parts.
+struct FactorLine {
+  std::string factor;     // "score", "ltv", "dti", ..., "scenario"
+  std::string value;      // the tape's value as read ("712", "83.5%", "limited")
+  std::string band;       // "700-739", or the category
+  double default_multiplier = 1.0;
+  double prepay_multiplier = 1.0;  // refinance (score, LTV) or 1
+};
+struct LoanExplanation {
+  std::string loan_id;
+  std::uint32_t row = 0;
+  std::vector<FactorLine> factors;
+  double property_value = 0;       // at cut-off, dollars
+  double junior_liens = 0;         // dollars
+  double updated_ltv = 0;          // at cut-off, decimal
+  int timeline_months = 0;         // liquidation lag
+  double default_multiplier = 1.0; // product, scenario included
+  double base_cdr_month1 = 0, cdr_month1 = 0;  // decimals, annual
+  double incentive_month1 = 0;     // note rate less market mortgage rate, decimal
+  double turnover_cpr_month1 = 0, refi_cpr_month1 = 0, cpr_month1 = 0;
+  double severity_month1 = 0;      // if it defaulted in month 1, lost interest included
+  std::string delinquency;         // "current", "60", ...; roll share and months if any
+  double roll_share = 0;
+  int roll_months = 0;
+};
+// Throws std::out_of_range if `index` >= loans.size().
+LoanExplanation explain_loan(const LoanArrays& loans, std::size_t index, const ModelRun& run);
+
+// Months a projection of these loans can run: the longest remaining term plus the liquidation lag
+// (with the model, the longest state timeline), plus one. Coupon paths and discount factors that
+// cover this many months cover every loan.
+int projection_horizon(const LoanArrays& loans, const Assumptions& assumptions,
+                       const ModelRun* model = nullptr);
 
 struct ProjectionOptions {
   // Worker threads; 0 = every core. Results do not depend on it.
@@ -67,6 +129,12 @@ struct ProjectionOptions {
   std::span<const double> discount;
   // Coupon paths for rate-changing loans; null = every loan keeps its note rate.
   const CouponPaths* coupons = nullptr;
+  // The loan-level model: when set, each loan's SMM, MDR, severity and liquidation lag come from
+  // it, and Assumptions' prepay, default, severity, lag_months and delinquent_default are not
+  // read (advancing still is). Its months must cover projection_horizon(..., model).
+  const ModelRun* model = nullptr;
+  // With the model: defaults off (the no-loss view), prepayment as modelled.
+  bool no_defaults = false;
 };
 
 // The pool by month. Vectors have `months` entries, [0] = month 1. Dollars unless noted.

@@ -4,14 +4,23 @@
 #include <vector>
 
 #include "cashflow/cashflow.h"
+#include "cashflow/loan_model.h"
 
 namespace poolbid {
 
-int projection_horizon(const LoanArrays& loans, const Assumptions& assumptions) {
+int projection_horizon(const LoanArrays& loans, const Assumptions& assumptions,
+                       const ModelRun* model) {
   int longest = 0;
   for (std::size_t i = 0; i < loans.size(); ++i)
     longest = std::max(longest, loans.remaining_term[i]);
-  return longest + std::max(assumptions.lag_months, 0) + 1;
+  if (!model) return longest + std::max(assumptions.lag_months, 0) + 1;
+  const detail::ModelTables tables = detail::model_tables(*model, false);
+  int lag = 0;
+  for (std::size_t i = 0; i < loans.size(); ++i) {
+    const std::size_t state = loans.state[i];
+    lag = std::max(lag, state < tables.timeline.size() ? tables.timeline[state] : tables.timeline[0]);
+  }
+  return longest + lag + 1;
 }
 
 CouponPaths arm_coupon_paths(const LoanArrays& loans, const YieldCurve& curve, Date cutoff,

@@ -25,11 +25,18 @@ enum Sum : int {
   kBegin, kDefaults, kSched, kPrepay, kGross, kServicing, kNet, kEnd,
   kRecoveryByDefaultMonth,  // recovery of the balance defaulting in month t
   kAdvanceByDefaultMonth,   // monthly interest advanced on the balance defaulting in month t
+  // The loan-level model, whose liquidation lag differs loan by loan: by month of liquidation.
+  kRecoveryByLiquidationMonth,  // recovery received in month t
+  kLiquidatedByLiquidationMonth,  // defaulted balance liquidated in month t
+  kAdvanceStart,            // monthly advance starting in month t (month of default)
+  kAdvanceStop,             // monthly advance ending before month t (month of liquidation)
   kSumCount
 };
 struct ChunkSums {
   std::array<std::vector<double>, kSumCount> by_month;
 };
+
+struct ModelTables;  // cashflow/loan_model.h
 
 // Everything the loop needs besides the loans themselves; built once per projection.
 struct EngineInputs {
@@ -43,6 +50,10 @@ struct EngineInputs {
   std::vector<double> advance_discount;  // [t] = sum of discount over months t .. t+lag-1
   const CouponPaths* coupons = nullptr;
   LoanFlows* loan_totals = nullptr;  // null: pool sums only
+  // The loan-level model (null: the curves above). Its lags are per loan, up to max_lag.
+  const ModelTables* model = nullptr;
+  int max_lag = 0;
+  std::vector<double> cumulative_discount;  // [t] = discount[1] + ... + discount[t]; model only
 };
 
 // Level payment per dollar of balance over `months` at monthly rate `r`: r / (1 - (1 + r)^-months),

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "cashflow/engine.h"
+#include "cashflow/loan_model.h"
 
 namespace poolbid::detail {
 namespace {
@@ -47,6 +48,33 @@ struct Block {
   alignas(64) double timed_principal[kBlockLoans];  // sum of month x principal, for WAL
   alignas(64) double present_value[kBlockLoans];
   alignas(64) double last_cash[kBlockLoans];
+  // Slot i holds loan index[i]. Without the model slots follow loan order; with it they are
+  // grouped by liquidation lag (loan order within a lag), so each group's liquidations add into
+  // one month. slot_of[k] is the slot of the block's k-th loan in loan order.
+  std::uint32_t index[kBlockLoans];
+  std::uint32_t slot_of[kBlockLoans];
+  struct LagGroup {
+    int lag;
+    std::uint32_t begin, end;  // slots
+  };
+  LagGroup groups[kBlockLoans];
+  std::size_t group_count = 0;
+  // The loan-level model's per-loan terms (loan_model.h LoanTerms) and state.
+  alignas(64) double default_mult[kBlockLoans];
+  alignas(64) double refi_mult[kBlockLoans];
+  alignas(64) double value[kBlockLoans];      // property value at cut-off
+  alignas(64) double inv_value[kBlockLoans];
+  alignas(64) double junior[kBlockLoans];
+  alignas(64) double roll_mdr[kBlockLoans];
+  alignas(64) double roll_end[kBlockLoans];   // last month of the roll; 0 = none
+  alignas(64) double lag[kBlockLoans];        // liquidation lag, months
+  alignas(64) int lag_months[kBlockLoans];
+  alignas(64) int ltv_slot[kBlockLoans];      // -1 = band from the updated LTV
+  alignas(64) double burnout[kBlockLoans];    // share of the refinance response left
+  // This month's liquidation sums by slot, added by lag group after the loop.
+  alignas(64) double recovered_now[kBlockLoans];
+  alignas(64) double defaulted_now[kBlockLoans];
+  alignas(64) double advance_now[kBlockLoans];
 };
 
 // Month of a coupon change that never comes: past any loan's last month.
@@ -67,13 +95,45 @@ struct BlockCoupons {
   double annual[kBlockLoans];   // each slot's current note rate (listed slots only)
 };
 
+// Slot order: loan order, or with the model grouped by liquidation lag (a stable counting sort,
+// so the order does not depend on anything but the loans).
+void order_slots(const EngineInputs& in, std::size_t first, std::size_t count, Block& b) {
+  b.group_count = 0;
+  if (!in.model) {
+    for (std::size_t k = 0; k < count; ++k) b.index[k] = b.slot_of[k] = static_cast<std::uint32_t>(k);
+    for (std::size_t k = 0; k < count; ++k) b.index[k] += static_cast<std::uint32_t>(first);
+    b.groups[0] = {in.lag, 0, static_cast<std::uint32_t>(count)};
+    b.group_count = count ? 1 : 0;
+    return;
+  }
+  const ModelTables& m = *in.model;
+  const LoanArrays& l = *in.loans;
+  std::vector<std::uint32_t> per_lag(static_cast<std::size_t>(in.max_lag) + 2, 0);
+  int lags[kBlockLoans];
+  for (std::size_t k = 0; k < count; ++k) {
+    const std::size_t state = l.state[first + k];
+    lags[k] = state < m.timeline.size() ? m.timeline[state] : m.timeline[0];
+    ++per_lag[static_cast<std::size_t>(lags[k]) + 1];
+  }
+  for (std::size_t L = 1; L < per_lag.size(); ++L) per_lag[L] += per_lag[L - 1];
+  for (std::size_t L = 0; L + 1 < per_lag.size(); ++L)
+    if (per_lag[L + 1] > per_lag[L])
+      b.groups[b.group_count++] = {static_cast<int>(L), per_lag[L], per_lag[L + 1]};
+  for (std::size_t k = 0; k < count; ++k) {
+    const std::uint32_t slot = per_lag[static_cast<std::size_t>(lags[k])]++;
+    b.index[slot] = static_cast<std::uint32_t>(first + k);
+    b.slot_of[k] = slot;
+  }
+}
+
 void load_block(const EngineInputs& in, std::size_t first, std::size_t count, Block& b) {
   const LoanArrays& l = *in.loans;
   b.first = first;
   b.count = count;
   b.months = 0;
+  order_slots(in, first, count, b);
   for (std::size_t i = 0; i < count; ++i) {
-    const std::size_t g = first + i;
+    const std::size_t g = b.index[i];
     const double r = l.note_rate[g] / 12.0;
     const double s = l.servicing_fee[g] / 12.0;
     const int remaining = l.remaining_term[g];
@@ -93,6 +153,21 @@ void load_block(const EngineInputs& in, std::size_t first, std::size_t count, Bl
                           : 0.0;
     b.age[i] = l.age[g];
     b.months = std::max(b.months, last);
+    if (in.model) {
+      const LoanTerms terms = loan_terms(*in.model, l, g);
+      b.default_mult[i] = terms.default_multiplier;
+      b.refi_mult[i] = terms.refi_multiplier;
+      b.value[i] = terms.property_value;
+      b.inv_value[i] = 1.0 / terms.property_value;
+      b.junior[i] = terms.junior;
+      b.roll_mdr[i] = terms.roll_mdr;
+      b.roll_end[i] = terms.roll_months;
+      b.lag[i] = terms.timeline;
+      b.lag_months[i] = terms.timeline;
+      b.ltv_slot[i] = terms.ltv_slot;
+      b.burnout[i] = 1.0;
+      b.delinquent[i] = 0.0;
+    }
   }
   if (in.loan_totals) {
     for (double* total : {b.sched, b.prepaid, b.defaulted, b.recovered, b.gross, b.serviced,
@@ -112,7 +187,7 @@ void coupon_events(const EngineInputs& in, const Block& b, BlockCoupons& out) {
   auto it = std::lower_bound(listed.begin(), listed.end(), b.first);
   for (; it != listed.end() && *it < b.first + b.count; ++it) {
     const auto k = static_cast<std::size_t>(it - listed.begin());
-    const auto slot = static_cast<std::uint32_t>(*it - b.first);
+    const auto slot = b.slot_of[*it - b.first];
     out.annual[slot] = in.loans->note_rate[*it];
     for (std::size_t c = paths.begin[k]; c < paths.begin[k + 1]; ++c)
       if (paths.changes[c].month <= b.months)  // later changes never apply
@@ -143,7 +218,7 @@ int apply_coupon_changes(const EngineInputs& in, Block& b, BlockCoupons& coupons
     const std::size_t i = e.slot;
     if (e.rate == coupons.annual[i]) continue;
     coupons.annual[i] = e.rate;
-    const int remaining = in.loans->remaining_term[b.first + i];
+    const int remaining = in.loans->remaining_term[b.index[i]];
     const int io_end = static_cast<int>(b.io_end[i]);
     b.rate[i] = e.rate / 12.0;
     b.net[i] = b.rate[i] - b.fee[i];
@@ -265,10 +340,161 @@ void step_month(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
   s[kAdvanceByDefaultMonth][t] += s_advance;
 }
 
+// One month of the loan-level model for one block (DESIGN.md section 7 in the monthly step of
+// section 4): each loan's MDR from its age, fixed multipliers and updated-LTV band; its SMM from
+// turnover and the refinance S-curve in its incentive (burnout, score and LTV applied); its
+// recovery from the property value at sale. Liquidations are kept per slot and added by lag group.
+template <bool kTotals>
+void step_model(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
+  const ModelTables& m = *in.model;
+  const double* const base_table = m.base_mdr.by_month.data();
+  const double* const turnover_table = m.turnover_smm.by_month.data();
+  const int base_hold = m.base_mdr.hold, turnover_hold = m.turnover_smm.hold;
+  const int base_age = m.base_mdr.clock == CurveClock::loan_age ? 1 : 0;
+  const int turnover_age = m.turnover_smm.clock == CurveClock::loan_age ? 1 : 0;
+  const double* const edges = m.ltv_edges.data();
+  const double* const ltv_default = m.ltv_default.data();
+  const double* const ltv_refi = m.ltv_refi.data();
+  const double* const ltv_turnover = m.ltv_turnover.data();
+  const double* const refi_table = m.refi_smm.data();
+  const double* const house = m.house_price.data();
+  const double house_now = house[t - 1];  // index at the start of the month
+  const double inverse_house = 1.0 / house_now;
+  const double mortgage = m.mortgage_rate[t];
+  const double burnout_rate = m.burnout_per_unit;
+  const double prepay_multiplier = m.prepay_multiplier;
+  const double defaults_on = m.no_defaults ? 0.0 : 1.0;
+  const double sale_factor = m.sale_factor;
+  const double carrying = m.carrying_per_month * house_now;
+  const double foreclosure_cost = m.foreclosure_cost;
+  const double advancing = in.advancing ? 1.0 : 0.0;
+  const double grid_low = kIncentiveLow, grid_scale = 1.0 / kIncentiveStep;
+  const double grid_top = kIncentivePoints - 1;
+  const std::size_t n = b.count;
+  const double month = t;
+  const double* const discount = kTotals ? in.discount.data() : nullptr;
+  const double* const cumulative = kTotals ? in.cumulative_discount.data() : nullptr;
+  const double df_paid = kTotals ? in.discount[t] : 0.0;
+  const double cumulative_before = kTotals ? in.cumulative_discount[t - 1] : 0.0;
+
+  double s_begin = 0, s_defaults = 0, s_sched = 0, s_prepay = 0, s_gross = 0, s_servicing = 0,
+         s_net = 0, s_end = 0, s_advance = 0;
+#pragma omp simd reduction(+ : s_begin, s_defaults, s_sched, s_prepay, s_gross, s_servicing, \
+                             s_net, s_end, s_advance)
+  for (std::size_t i = 0; i < n; ++i) {
+    const double begin = b.balance[i];
+    // Updated LTV band (fixed slot when the tape has no value or the factor reads neutral).
+    const double ltv = (begin + b.junior[i]) * b.inv_value[i] * inverse_house;
+    int band = 0;
+    for (int e = 0; e < kMaxLtvEdges; ++e) band += ltv >= edges[e] ? 1 : 0;
+    band = b.ltv_slot[i] >= 0 ? b.ltv_slot[i] : band;
+    // Default: rolling delinquents first, then the base curve times the loan's multipliers.
+    const double hazard = base_table[lesser(base_age * b.age[i] + t, base_hold)] *
+                          b.default_mult[i] * ltv_default[band];
+    double mdr = month <= b.roll_end[i] ? b.roll_mdr[i] : hazard;
+    mdr = (mdr < 1.0 ? mdr : 1.0) * defaults_on;
+    // Prepayment: turnover + refinance in the incentive, read to the nearest basis point.
+    const double incentive = 12.0 * b.rate[i] - mortgage;
+    double point = (incentive - grid_low) * grid_scale + 0.5;
+    point = point < 0.0 ? 0.0 : (point > grid_top ? grid_top : point);
+    const double refi =
+        refi_table[static_cast<int>(point)] * b.refi_mult[i] * ltv_refi[band] * b.burnout[i];
+    b.burnout[i] *= greater(0.0, 1.0 - burnout_rate * greater(0.0, incentive));
+    const double turnover =
+        turnover_table[lesser(turnover_age * b.age[i] + t, turnover_hold)] * ltv_turnover[band];
+    double smm = (refi + turnover) * prepay_multiplier;
+    smm = smm < 1.0 ? smm : 1.0;
+
+    // The monthly step, as in step_month.
+    const double defaulted = begin * mdr;
+    const double performing = begin - defaulted;
+    const bool interest_only = month <= b.io_end[i];
+    const bool final_month = month == b.last[i];
+    const double gross = performing * b.rate[i];
+    const double servicing = performing * b.fee[i];
+    const double net = performing * b.net[i];
+    const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
+    const double sched = final_month ? performing : payment - gross;
+    const double prepay = final_month ? 0.0 : smm * (performing - sched);
+    const double end = performing - sched - prepay;
+    b.balance[i] = end;
+    b.payment[i] = final_month      ? 0.0
+                   : interest_only ? end * b.io_factor[i]
+                                   : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
+    // Liquidation `lag` months on: the property sold at the index then, less costs; advances
+    // (net interest while waiting) come out of the proceeds.
+    const double lag = b.lag[i];
+    const double sale = b.value[i] * house[t - 1 + b.lag_months[i]] * sale_factor;
+    const double proceeds = sale - foreclosure_cost - carrying * b.value[i] * lag;
+    const double capped = proceeds < begin ? proceeds : begin;
+    const double recovery = mdr * greater(0.0, capped - begin * b.net[i] * lag * advancing);
+    const double advance = defaulted * b.net[i];
+    b.recovered_now[i] = recovery;
+    b.defaulted_now[i] = defaulted;
+    b.advance_now[i] = advance;
+
+    s_begin += begin;
+    s_defaults += defaulted;
+    s_sched += sched;
+    s_prepay += prepay;
+    s_gross += gross;
+    s_servicing += servicing;
+    s_net += net;
+    s_end += end;
+    s_advance += advance;
+
+    if constexpr (kTotals) {
+      const double advance_months = lag * advancing;
+      const double advanced = advance * advance_months;
+      const int liquidation = t + b.lag_months[i];
+      b.sched[i] += sched;
+      b.prepaid[i] += prepay;
+      b.defaulted[i] += defaulted;
+      b.recovered[i] += recovery;
+      b.gross[i] += gross;
+      b.serviced[i] += servicing;
+      b.netpaid[i] += net;
+      b.advanced[i] += advanced;
+      b.timed_principal[i] += month * (sched + prepay) + (month + lag) * recovery;
+      const double df_advanced =
+          advancing * (cumulative[liquidation - 1] - cumulative_before);
+      b.present_value[i] += (net + sched + prepay) * df_paid + recovery * discount[liquidation] +
+                            advance * df_advanced;
+      const double paid = greater(b.last_cash[i], net + sched + prepay > 0.0 ? month : 0.0);
+      const double advanced_to = advanced > 0.0 ? month + advance_months - 1.0 : 0.0;
+      b.last_cash[i] = greater(greater(paid, advanced_to), recovery > 0.0 ? month + lag : 0.0);
+    }
+  }
+  auto& s = sums.by_month;
+  s[kBegin][t] += s_begin;
+  s[kDefaults][t] += s_defaults;
+  s[kSched][t] += s_sched;
+  s[kPrepay][t] += s_prepay;
+  s[kGross][t] += s_gross;
+  s[kServicing][t] += s_servicing;
+  s[kNet][t] += s_net;
+  s[kEnd][t] += s_end;
+  s[kAdvanceStart][t] += s_advance;
+  // Liquidations, lag group by lag group.
+  for (std::size_t k = 0; k < b.group_count; ++k) {
+    const Block::LagGroup& group = b.groups[k];
+    double recovered = 0, defaulted = 0, advanced = 0;
+    for (std::uint32_t i = group.begin; i < group.end; ++i) {
+      recovered += b.recovered_now[i];
+      defaulted += b.defaulted_now[i];
+      advanced += b.advance_now[i];
+    }
+    const std::size_t when = static_cast<std::size_t>(t + group.lag);
+    s[kRecoveryByLiquidationMonth][when] += recovered;
+    s[kLiquidatedByLiquidationMonth][when] += defaulted;
+    s[kAdvanceStop][when] += advanced;
+  }
+}
+
 void store_totals(const Block& b, LoanFlows& out) {
   const bool discounted = !out.present_value.empty();
   for (std::size_t i = 0; i < b.count; ++i) {
-    const std::size_t g = b.first + i;
+    const std::size_t g = b.index[i];
     out.sched_principal[g] = b.sched[i];
     out.prepayment[g] = b.prepaid[i];
     out.defaults[g] = b.defaulted[i];
@@ -306,6 +532,14 @@ void run_block(const EngineInputs& in, Block& b, BlockCoupons& coupons, ChunkSum
     return table.clock == CurveClock::loan_age && youngest + t < table.hold;
   };
   int due = next_change(coupons);  // month of the next coupon change
+  if (in.model) {
+    const auto step = step_model<kTotals>;
+    for (int t = 1; t <= b.months; ++t) {
+      if (t >= due) due = apply_coupon_changes(in, b, coupons, t);
+      step(in, b, t, sums);
+    }
+    return;
+  }
   for (int t = 1; t <= b.months; ++t) {
     if (t >= due) due = apply_coupon_changes(in, b, coupons, t);
     const int key = (per_loan(in.smm, t) ? 4 : 0) + (per_loan(in.mdr, t) ? 2 : 0) +

@@ -14,6 +14,7 @@
 #include <fmt/core.h>
 
 #include "cashflow/engine.h"
+#include "cashflow/loan_model.h"
 
 namespace poolbid {
 namespace {
@@ -144,9 +145,10 @@ void size_loan_totals(LoanFlows& f, std::size_t n, bool discounted) {
 // The pool table from the summed chunk columns: liquidations shifted by the lag, advances spread
 // over the months each defaulted balance waits, then totals, realised speeds and cumulative loss.
 PoolFlows pool_table(const std::array<std::vector<double>, detail::kSumCount>& s, int horizon,
-                     int lag, bool advancing, double cutoff_balance) {
+                     int lag, bool advancing, double cutoff_balance, bool by_liquidation) {
   using namespace detail;
   const int months = horizon + lag;
+  double advancing_now = 0, advances_started = 0;  // by_liquidation: running advance
   PoolFlows p;
   p.months = months;
   p.cutoff_balance = cutoff_balance;
@@ -168,11 +170,22 @@ PoolFlows pool_table(const std::array<std::vector<double>, detail::kSumCount>& s
       p.net_interest[k] = s[kNet][t];
       p.end_balance[k] = s[kEnd][t];
     }
-    if (const int d = t - lag; d >= 1 && d <= horizon) {
+    if (by_liquidation) {
+      p.recovery[k] = s[kRecoveryByLiquidationMonth][t];
+      p.loss[k] = s[kLiquidatedByLiquidationMonth][t] - s[kRecoveryByLiquidationMonth][t];
+      if (advancing) {  // advances run from the month of default to the month before the sale
+        advances_started += s[kAdvanceStart][t];
+        advancing_now += s[kAdvanceStart][t] - s[kAdvanceStop][t];
+        // What is left once every advance has stopped is rounding: nothing.
+        if (std::fabs(advancing_now) <= 1e-12 * advances_started) advancing_now = 0;
+        p.advanced_interest[k] = advancing_now;
+        p.net_interest[k] += advancing_now;
+      }
+    } else if (const int d = t - lag; d >= 1 && d <= horizon) {
       p.recovery[k] = s[kRecoveryByDefaultMonth][d];
       p.loss[k] = s[kDefaults][d] - s[kRecoveryByDefaultMonth][d];
     }
-    if (advancing) {  // balances defaulted in months t - lag + 1 .. t are still awaiting sale
+    if (advancing && !by_liquidation) {  // balances defaulted in months t - lag + 1 .. t await sale
       double advanced = 0;
       for (int d = std::max(1, t - lag + 1); d <= std::min(t, horizon); ++d)
         advanced += s[kAdvanceByDefaultMonth][d];
@@ -230,7 +243,33 @@ Projection project_pool(const LoanArrays& loans, const Assumptions& assumptions,
   in.coupons = options.coupons;
   for (std::size_t i = 0; i < n; ++i)
     in.horizon = std::max(in.horizon, detail::final_month(loans, i));
-  const int months = in.horizon + in.lag;
+  detail::ModelTables model;
+  if (options.model) {
+    model = detail::model_tables(*options.model, options.no_defaults);
+    check_table(model.base_mdr, "model's base default");
+    check_table(model.turnover_smm, "model's turnover");
+    in.model = &model;
+    in.lag = 0;
+    in.delinquent_default = false;
+    for (std::size_t i = 0; i < n; ++i) {
+      const std::size_t state = loans.state[i];
+      in.max_lag = std::max(in.max_lag, state < model.timeline.size() ? model.timeline[state]
+                                                                      : model.timeline[0]);
+    }
+    const ModelRun& run = *options.model;
+    if (run.house_price_index.size() < std::size_t(in.horizon + in.max_lag) ||
+        run.mortgage_rate.size() < std::size_t(in.horizon) ||
+        !std::all_of(run.house_price_index.begin(), run.house_price_index.end(),
+                     [](double v) { return std::isfinite(v) && v > 0; }))
+      throw std::invalid_argument(fmt::format(
+          "project_pool: the model run covers {} months of house prices and {} of mortgage "
+          "rates (all positive); these loans need {} and {}",
+          run.house_price_index.size(), run.mortgage_rate.size(), in.horizon + in.max_lag,
+          in.horizon));
+  } else {
+    in.max_lag = in.lag;
+  }
+  const int months = in.horizon + in.max_lag;
 
   Projection result;
   std::vector<double> no_discount;
@@ -249,27 +288,33 @@ Projection project_pool(const LoanArrays& loans, const Assumptions& assumptions,
     in.advance_discount.assign(std::size_t(in.horizon) + 1, 0.0);
     for (int t = 1; t <= in.horizon; ++t)
       for (int u = t; u < t + in.lag; ++u) in.advance_discount[t] += in.discount[u];
+    if (in.model) {
+      in.cumulative_discount.assign(std::size_t(months) + 1, 0.0);
+      for (int t = 1; t <= months; ++t)
+        in.cumulative_discount[t] = in.cumulative_discount[t - 1] + in.discount[t];
+    }
     size_loan_totals(result.loans, n, discounted);
     in.loan_totals = &result.loans;
   }
 
   std::vector<ChunkSums> chunks((n + kChunkLoans - 1) / kChunkLoans);
   for (ChunkSums& c : chunks)
-    for (auto& column : c.by_month) column.assign(std::size_t(in.horizon) + 1, 0.0);
+    for (auto& column : c.by_month) column.assign(std::size_t(months) + 1, 0.0);
   unsigned threads = options.threads ? options.threads : std::thread::hardware_concurrency();
   threads = std::max(1u, std::min<unsigned>(threads, static_cast<unsigned>(chunks.size())));
   run_chunks(in, n, threads, chunks);
 
   // Fixed-order reduction: chunk 0, 1, 2, ... whatever thread ran each.
   std::array<std::vector<double>, detail::kSumCount> sums;
-  for (auto& column : sums) column.assign(std::size_t(in.horizon) + 1, 0.0);
+  for (auto& column : sums) column.assign(std::size_t(months) + 1, 0.0);
   for (const ChunkSums& c : chunks)
     for (int k = 0; k < detail::kSumCount; ++k)
       for (std::size_t t = 0; t < sums[k].size(); ++t) sums[k][t] += c.by_month[k][t];
   double cutoff_balance = 0;
   for (std::size_t i = 0; i < n; ++i) cutoff_balance += loans.current_balance[i];
 
-  result.pool = pool_table(sums, in.horizon, in.lag, in.advancing, cutoff_balance);
+  result.pool = pool_table(sums, in.horizon, in.max_lag, in.advancing, cutoff_balance,
+                           in.model != nullptr);
   return result;
 }
 

@@ -29,14 +29,32 @@ std::optional<CouponPaths> coupons_on(const LoanArrays& loans, const YieldCurve&
 
 Projection project_with(const LoanArrays& loans, const std::optional<CouponPaths>& coupons,
                         const Assumptions& a, const BidRequest& request, bool loan_totals,
-                        std::span<const double> discount = {}) {
+                        std::span<const double> discount = {}, const ModelRun* model = nullptr,
+                        bool no_defaults = false) {
   ProjectionOptions options;
   options.threads = request.threads;
   options.loan_totals = loan_totals;
   options.discount = discount;
   options.coupons = coupons ? &*coupons : nullptr;
+  options.model = model;
+  options.no_defaults = no_defaults;
   return project_pool(loans, a, options);
 }
+
+bool shifts(const CurveShift& shift) {
+  return shift.parallel_bp != 0 ||
+         std::any_of(shift.key_bp.begin(), shift.key_bp.end(), [](double bp) { return bp != 0; });
+}
+
+// The loan-level model's run on one curve, or none without a model.
+std::optional<ModelRun> run_on(const LoanArrays& loans, const YieldCurve& curve,
+                               const BidRequest& request, int horizon) {
+  if (!request.model) return std::nullopt;
+  return model_run(*request.model, request.scenario, curve, request.settlement.cutoff, horizon,
+                   request.neutral);
+}
+
+const ModelRun* pointer(const std::optional<ModelRun>& run) { return run ? &*run : nullptr; }
 
 // to += sign x from, month by month. Every projection ends within the horizon (the longest
 // remaining term plus the lag); a longer one would be a bug here, not a fact of the pool.
@@ -102,8 +120,15 @@ PoolView read_view(const PoolFlows& pool, const PaymentGrid& grid, const YieldCu
 
 }  // namespace
 
-BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const BidRequest& request) {
+BidResult price_pool(const LoanArrays& loans, const YieldCurve& given_curve,
+                     const BidRequest& request) {
   BidResult result;
+  // With the model, the scenario's rate shock moves the curve for everything that follows.
+  result.curve = request.model && shifts(request.scenario.rate_shock)
+                     ? shift_curve(given_curve, request.scenario.rate_shock)
+                     : given_curve;
+  const YieldCurve& curve = result.curve;
+  if (request.model) result.scenario = request.scenario.name;
   const Settlement& settlement = request.settlement;
   double balance = 0, net = 0;
   for (std::size_t i = 0; i < loans.size(); ++i) {
@@ -117,7 +142,11 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   result.net_coupon = net / balance;
   result.arm_loans = count_arms(loans);
 
-  const int horizon = projection_horizon(loans, request.assumptions);
+  ModelRun probe;
+  probe.model = request.model;
+  const int horizon =
+      projection_horizon(loans, request.assumptions, request.model ? &probe : nullptr);
+  const std::optional<ModelRun> run = run_on(loans, curve, request, horizon);
   const PaymentGrid grid = payment_grid(curve, settlement, horizon);
   result.accrued =
       accrued_interest(balance, result.net_coupon, settlement.cutoff, settlement.settle);
@@ -135,7 +164,8 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   const std::optional<CouponPaths> coupons = coupons_on(loans, curve, request, horizon);
   result.flows = project_with(loans, coupons, request.assumptions, request, values_now,
                               values_now ? discount_at(cfy_from_bey(request.value))
-                                       : std::span<const double>{});
+                                       : std::span<const double>{},
+                              pointer(run));
   const PoolFlows& pool = result.flows.pool;
   const std::span<const double> cash(pool.cash_flow);
 
@@ -160,12 +190,23 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   result.clean_price = result.clean_value / balance * 100;
 
   const Assumptions no_loss = without_defaults(request.assumptions);
-  result.no_loss_flows = project_with(loans, coupons, no_loss, request, false).pool;
+  result.no_loss_flows =
+      project_with(loans, coupons, no_loss, request, false, {}, pointer(run), true).pool;
   result.loss_adjusted = read_view(pool, grid, curve, pv, balance, "loss-adjusted");
   result.no_loss = read_view(result.no_loss_flows, grid, curve, pv, balance, "no-loss");
   result.credit_cost_bp = (result.no_loss.z_spread - result.loss_adjusted.z_spread) * 1e4;
+  double defaults = 0;
   for (double loss : pool.loss) result.expected_loss += loss;
+  for (double d : pool.defaults) defaults += d;
   result.expected_loss_pct = result.expected_loss / balance * 100;
+  result.cum_default_pct = defaults / balance * 100;
+  result.severity_pct = defaults > 0 ? result.expected_loss / defaults * 100 : 0.0;
+  if (!request.risk) {
+    if (request.loan_values && !values_now)
+      result.flows = project_with(loans, coupons, request.assumptions, request, true,
+                                  discount_at(result.loss_adjusted.cfy), pointer(run));
+    return result;
+  }
 
   // Effective duration and convexity: the curve moved by +/- the shock, the loss-adjusted flows
   // re-projected where they read the curve, the Z-spread held. Only ARM coupons read the curve,
@@ -177,7 +218,11 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   add_cash(steady_cash, pool.cash_flow, 1.0);
   LoanArrays arm_subset;
   const LoanArrays* movers = &loans;  // the loans whose flows read the curve
-  if (result.arm_loans > 0 && result.arm_loans < loans.size()) {
+  // With the model every loan's prepayment reads the curve (the market mortgage rate): all move.
+  const bool all_move = request.model != nullptr;
+  if (all_move) {
+    std::fill(steady_cash.begin(), steady_cash.end(), 0.0);
+  } else if (result.arm_loans > 0 && result.arm_loans < loans.size()) {
     std::vector<std::uint32_t> arm_indexes;
     arm_indexes.reserve(result.arm_loans);
     for (std::size_t i = 0; i < loans.size(); ++i)
@@ -200,7 +245,14 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
   // The pool's value on a moved curve at the bid's Z-spread.
   auto value_on = [&](const YieldCurve& moved) {
     std::vector<double> moved_cash = steady_cash;
-    if (result.arm_loans > 0) {
+    if (all_move) {
+      const std::optional<ModelRun> moved_run = run_on(loans, moved, request, horizon);
+      const PoolFlows p = project_with(loans, coupons_on(loans, moved, request, horizon),
+                                       request.assumptions, request, false, {},
+                                       pointer(moved_run))
+                              .pool;
+      add_cash(moved_cash, p.cash_flow, 1.0);
+    } else if (result.arm_loans > 0) {
       const PoolFlows p = project_with(*movers, coupons_on(*movers, moved, request, horizon),
                                        request.assumptions, request, false)
                               .pool;
@@ -229,7 +281,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
 
   if (request.loan_values && !values_now)
     result.flows = project_with(loans, coupons, request.assumptions, request, true,
-                                discount_at(result.loss_adjusted.cfy));
+                                discount_at(result.loss_adjusted.cfy), pointer(run));
   return result;
 }
 

@@ -3,6 +3,7 @@
 // for a bid target, with the loss-adjusted and no-loss views side by side.
 #pragma once
 
+#include <limits>
 #include <optional>
 #include <span>
 #include <stdexcept>
@@ -76,6 +77,14 @@ struct BidRequest {
   std::vector<double> key_rate_years = {2, 5, 10, 30};
   unsigned threads = 0;      // 0 = every core; results do not depend on it
   bool loan_values = false;  // value every loan at the pool's loss-adjusted yield
+  // The loan-level model (null = the assumptions' pool-wide curves). With it, the scenario's rate
+  // shock moves the curve before anything is projected or discounted (BidResult::curve), every
+  // loan is re-projected for effective and key-rate durations (prepayment reads rates), and the
+  // assumptions' advancing is the only field read.
+  const CreditModel* model = nullptr;
+  Scenario scenario;         // with a model: house prices, rate shock, multipliers
+  FactorSet neutral = 0;     // with a model: factors read neutral (attribution)
+  bool risk = true;          // effective duration, convexity, DV01, key-rate durations
 };
 
 // The pool's cash under one set of assumptions, read at the bid price.
@@ -111,6 +120,10 @@ struct BidResult {
   };
   std::vector<KeyRateDuration> key_rate_durations;  // one per BidRequest::key_rate_years
   std::size_t arm_loans = 0;     // loans on coupon paths from the curve's index forwards
+  std::string scenario;          // with a model: the scenario's name; "" otherwise
+  YieldCurve curve;              // the curve valued on: the given one moved by the scenario's shock
+  double cum_default_pct = 0;    // lifetime defaults, percent of cutoff_balance
+  double severity_pct = 0;       // lifetime loss / lifetime defaults, percent (0 if none)
   Projection flows;              // loss-adjusted; with loan totals (present_value at the pool's
                                  // cash-flow yield) when BidRequest::loan_values
   PoolFlows no_loss_flows;
@@ -125,5 +138,232 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& curve, const Bid
 struct PricingError : std::runtime_error {
   using std::runtime_error::runtime_error;
 };
+
+// ---- Kick-outs and decision analysis (DESIGN.md section 6) ---------------------------------------
+// pricing/kickouts.cpp. A buyer screens a seller's loans with a credit box, values each loan at
+// the bid, weighs the cost of each decision, kicks out the loans it will not buy and bids again.
+
+// A buyer's credit box: the loans it will buy. A limit not set and an empty list screen nothing.
+// Ratios are decimals (0.95 = 95%); categories are the tape's values, states USPS codes.
+struct CreditBox {
+  std::string source = "default";  // the file it came from, or "default"; for reports
+  std::string description;
+  std::optional<double> min_score;
+  std::optional<double> max_ltv, max_cltv, max_dti;  // original LTV, combined LTV, DTI
+  std::vector<Documentation> documentation;           // allowed; empty = any
+  std::vector<Occupancy> occupancy;
+  std::vector<PropertyType> property_types;
+  std::vector<std::uint8_t> states;                   // state_index() codes
+  // A loan missing a field the box screens on (no score, `unknown` documentation, no state, ...)
+  // is inside (true) or outside with the reason "score not on the tape" (false).
+  bool missing_inside = false;
+  bool operator==(const CreditBox&) const = default;
+};
+
+// The illustrative buyer box (demo-pools/credit-box.json holds the same): score >= 620,
+// LTV <= 95%, CLTV <= 100%, DTI <= 50%, full or limited documentation, any occupancy, every
+// property type but manufactured, any state; a loan missing a screened field is outside.
+CreditBox default_credit_box();
+
+// The credit box file (JSON, our format; README "Kick-outs"), LTV, CLTV and DTI in percent:
+//   {"description": "...", "min_score": 620, "max_ltv": 95, "max_cltv": 100, "max_dti": 50,
+//    "documentation": ["full", "limited"], "occupancy": ["owner"], "property_types": [...],
+//    "states": ["CA", "TX"], "missing_fields": "outside"}
+// A key left out (or null) screens nothing. Unknown and duplicate keys and bad values throw
+// AssumptionError naming the file, the key ("states[2]") and the value.
+CreditBox load_credit_box(const std::string& path);
+CreditBox parse_credit_box(std::string_view json_text, std::string_view source_name);
+
+// The box's screens, in the order reasons are given.
+enum class BoxScreen : std::uint8_t {
+  score, ltv, cltv, dti, documentation, occupancy, property_type, state, count_
+};
+inline constexpr std::size_t kBoxScreenCount = static_cast<std::size_t>(BoxScreen::count_);
+std::string_view to_string(BoxScreen s);  // "score", "LTV", "CLTV", "DTI", "property type", ...
+
+// Why loan i is outside the box, one short reason per screen it fails ("score 598 below 620",
+// "LTV 97.0% above 95.0%", "documentation none not allowed", "DTI not on the tape"); empty when
+// inside. Throws std::out_of_range if i >= loans.size().
+std::vector<std::string> box_reasons(const CreditBox& box, const LoanArrays& loans,
+                                     std::size_t i);
+
+// What each decision costs, decimals of the loan's balance (illustrative defaults).
+struct DecisionEconomics {
+  double margin = 0.05;         // declining a loan that would have paid: its margin, a few points
+  double bad_loan_loss = 0.50;  // approving a loan that defaults: about half its balance
+};
+// p* = margin / (margin + loss): above this lifetime default probability a loan's expected loss
+// exceeds the margin expected from it. Throws std::invalid_argument unless both are finite and
+// >= 0 with a positive sum.
+double break_even_default_probability(double margin, double loss);
+
+// One loan's decision, read from the whole pool's bid.
+struct LoanDecision {
+  double default_probability = 0;  // lifetime defaults / cut-off balance
+  double expected_loss = 0;        // dollars, lifetime
+  double expected_loss_pct = 0;    // percent of the cut-off balance
+  double value = 0;                // dollars: its cash at the pool's loss-adjusted yield
+  double value_price = 0;          // value per 100 of balance
+  double allocated = 0;            // dollars: the pool's dirty price x the loan's balance
+  double severity = 0;             // loss / defaults if it defaults, else bad_loan_loss
+  bool modelled_severity = false;  // severity from its own defaults
+  double break_even = 0;           // its p* at `severity`
+  std::uint16_t box_screens = 0;   // bit (1 << BoxScreen) for each screen failed
+  std::vector<std::string> box_reasons;
+  bool outside_box = false;
+  bool below_price = false;        // value below allocated
+  bool above_break_even = false;   // default_probability above break_even
+  bool kicked() const { return outside_box || below_price || above_break_even; }
+};
+
+struct KickoutTally {
+  std::size_t loans = 0;
+  double upb = 0;  // dollars, cut-off balance
+};
+
+struct KickoutResult {
+  CreditBox box;
+  DecisionEconomics economics;
+  double break_even = 0;            // p* at economics.bad_loan_loss
+  BidResult whole;                  // every loan, with loan values
+  std::vector<LoanDecision> loans;  // one per loan, tape order
+  std::vector<std::uint32_t> kept, kicked;  // loan indexes, ascending; together every loan once
+  KickoutTally outside_box, below_price, above_break_even;  // a loan may be in several
+  std::vector<KickoutTally> by_screen;  // kBoxScreenCount entries: loans failing each screen
+  KickoutTally kicked_total, kept_total;
+  // The kept loans priced at the same target with the request as given; none when no loan or
+  // every loan is kicked.
+  std::optional<BidResult> without;
+};
+
+// Prices every loan (loan values on), decides each loan (outside the box, value below its
+// allocated price -- the pool's dirty price x its balance --, or lifetime default probability above
+// its break-even), then prices the kept loans at the same target. A value counts as below when it
+// is under the allocation by more than 1e-9 of the balance (rounding). Throws what price_pool
+// throws, and std::invalid_argument for bad economics.
+KickoutResult price_with_kickouts(const LoanArrays& loans, const YieldCurve& curve,
+                                  const BidRequest& request, const CreditBox& box,
+                                  const DecisionEconomics& economics = {});
+
+// ---- Seller comparison, attribution and the outcome matrix --------------------------------------
+// Pools set side by side under one model, one curve and one target (pricing/compare.cpp,
+// pricing/matrix.cpp). Every run is price_pool with the request as given, except as noted.
+
+// A pool to compare: a name for reports (the tape, the seller) and its accepted loans.
+struct NamedPool {
+  std::string name;
+  const LoanArrays* loans = nullptr;  // not null; must outlive the call
+};
+
+// A pool's measures read at a price other than its own bid: the loss-adjusted and no-loss views of
+// its flows at that clean price (percent of its cut-off balance; its own accrued interest added).
+// A measure with no solution at that price is NaN (PoolView fields) and `solved` false.
+struct PoolAtPrice {
+  double clean_price = 0;        // percent of cutoff_balance
+  double dirty_value = 0;        // dollars
+  PoolView loss_adjusted;
+  PoolView no_loss;
+  double credit_cost_bp = 0;     // no-loss Z-spread less loss-adjusted, bp
+  bool solved = true;
+};
+
+// One line of the attribution of a price gap between the first pool (A) and a later one (B), in
+// points of clean price at the common target. Positive = A is worth more because of it.
+struct AttributionLine {
+  std::string label;             // to_string(factor), "collateral and terms", "interaction"
+  std::optional<Factor> factor;  // none for the last two lines
+  double points = 0;             // percent of cut-off balance
+  double dollars = 0;            // points / 100 x pool B's cut-off balance
+};
+
+// Gap = P_A - P_B at the common target (clean, percent). For each factor f,
+// line_f = [P_A - P_A(f neutral)] - [P_B - P_B(f neutral)]; collateral and terms =
+// P_A(every factor neutral) - P_B(every factor neutral) (coupon, term, balance, state timelines:
+// the gap with credit read the same); interaction = gap - collateral - sum of factor lines, so
+// the lines add up to the gap exactly.
+struct Attribution {
+  std::size_t pool = 1;           // index of pool B in the comparison; A is pool 0
+  double gap_points = 0;
+  double gap_dollars = 0;         // gap_points / 100 x pool B's cut-off balance
+  std::vector<AttributionLine> lines;  // factors in Factor order, then collateral, interaction
+};
+
+struct ComparedPool {
+  std::string name;
+  BidResult bid;                  // at the common target (the request as given)
+  double cum_default_pct = 0;     // lifetime defaults, percent of cut-off balance
+  double severity_pct = 0;        // lifetime loss / lifetime defaults, percent
+  double cum_loss_pct = 0;        // lifetime loss, percent of cut-off balance
+  double wal_years = 0;           // loss-adjusted
+  PoolAtPrice at_common_price;
+  // Clean price at the common target with one factor read neutral ([f] for Factor f), and with
+  // every factor neutral; empty / NaN when attribution was not asked for.
+  std::vector<double> neutral_price;
+  double all_neutral_price = std::numeric_limits<double>::quiet_NaN();
+};
+
+struct CompareOptions {
+  // Clean price (percent) at which every pool's spread and yield are read; none = the first
+  // pool's price at the target.
+  std::optional<double> common_price;
+  bool attribution = true;        // the factor-neutral runs (9 more pricings per pool)
+};
+
+struct Comparison {
+  double common_price = 0;        // clean, percent, as used
+  bool price_given = false;       // common price from the options (else the first pool's)
+  std::vector<ComparedPool> pools;      // in the order given
+  std::vector<Attribution> attributions;  // one per later pool, in order (none without)
+};
+
+// Prices every pool at the request's target (yield or Z-spread; a price target is refused) under
+// the request's model and scenario, reads each at the common price, and attributes each later
+// pool's gap to the first by underwriting factor. Needs request.model (std::invalid_argument
+// otherwise, and for fewer than one pool or a null LoanArrays). Attribution runs use risk = false.
+// Throws what price_pool throws.
+Comparison compare_pools(std::span<const NamedPool> pools, const YieldCurve& curve,
+                         const BidRequest& request, const CompareOptions& options = {});
+
+// The pool's measures at clean price `clean_price` from its BidResult's flows, on the curve it was
+// valued on (BidResult::curve: with a model, moved by the scenario's shock). No re-projection.
+PoolAtPrice read_at_price(const BidResult& bid, const Settlement& settlement, double clean_price);
+
+// Every pool under every scenario: lifetime defaults and loss, the price at the target, WAL, and
+// the loss-adjusted yield and Z-spread (over the scenario's curve) at one common clean price.
+struct MatrixCell {
+  double cum_default_pct = 0;     // percent of cut-off balance
+  double cum_loss_pct = 0;        // percent of cut-off balance
+  double severity_pct = 0;        // loss / defaults, percent (0 if none)
+  double clean_price = 0;         // at the target, percent
+  double wal_years = 0;           // loss-adjusted
+  PoolAtPrice at_common_price;
+};
+
+struct MatrixOptions {
+  // Clean price (percent) for the spread columns; none = the first pool's price in the scenario
+  // named "base", or in the first scenario when none is called that.
+  std::optional<double> common_price;
+};
+
+struct OutcomeMatrix {
+  std::vector<std::string> pools;      // names, in the order given
+  std::vector<std::string> scenarios;  // names, in the order given
+  double common_price = 0;             // as used
+  std::size_t price_scenario = 0;      // the scenario the default common price came from
+  bool price_given = false;            // common price from the options
+  std::vector<MatrixCell> cells;       // pool-major: cells[pool x scenarios.size() + scenario]
+  const MatrixCell& at(std::size_t pool, std::size_t scenario) const {
+    return cells[pool * scenarios.size() + scenario];
+  }
+};
+
+// Runs price_pool (risk off, the request otherwise as given, its scenario replaced by each of
+// `scenarios`) for every pool and scenario. Needs request.model and at least one pool and one
+// scenario (std::invalid_argument); a price target is refused. Throws what price_pool throws.
+OutcomeMatrix outcome_matrix(std::span<const NamedPool> pools, std::span<const Scenario> scenarios,
+                             const YieldCurve& curve, const BidRequest& request,
+                             const MatrixOptions& options = {});
+
+// ---- Repricing a held pool after a shock --------------------------------------------------------
 
 }  // namespace poolbid

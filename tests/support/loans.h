@@ -44,10 +44,16 @@ struct TestLoan {
   double arm_floor = kNaN;         // absolute rate
   int arm_first_reset = 0;         // loan month of the first rate change; 0 = none
   int arm_reset_period = 0;        // months between later changes; 0 = none
+  // Credit terms the loan-level model reads (appended so older initialisers keep their order).
+  Documentation documentation = Documentation::full;
+  Purpose purpose = Purpose::purchase;
+  PropertyType property_type = PropertyType::single_family;
+  double property_value = kNaN;    // dollars; NaN = not given
+  double original_balance = kNaN;  // dollars; NaN = not given
 };
 
-// Loans in order, tape rows 2, 3, ...; one seller; full documentation, single-family purchases;
-// fixed-rate 30-year loans with a 0.25% servicing fee and no ARM terms unless the TestLoan says
+// Loans in order, tape rows 2, 3, ...; one seller; full documentation, single-family purchases
+// unless the TestLoan says otherwise; fixed-rate 30-year loans with a 0.25% servicing fee and no ARM terms unless the TestLoan says
 // otherwise. ARM index names are numbered from 1 in order of first appearance.
 inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
   LoanArrays a;
@@ -59,7 +65,7 @@ inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
     a.row.push_back(row++);
     a.seller.push_back(0);
     a.current_balance.push_back(t.upb);
-    a.original_balance.push_back(kNaN);
+    a.original_balance.push_back(t.original_balance);
     a.note_rate.push_back(t.rate);
     a.servicing_fee.push_back(t.servicing);
     a.original_term.push_back(t.original_term);
@@ -85,12 +91,12 @@ inline LoanArrays make_loans(const std::vector<TestLoan>& loans) {
     a.original_ltv.push_back(t.ltv);
     a.combined_ltv.push_back(t.cltv);
     a.dti.push_back(t.dti);
-    a.property_value.push_back(kNaN);
+    a.property_value.push_back(t.property_value);
     a.property_value_date.push_back(kNoDate);
     a.occupancy.push_back(t.occupancy);
-    a.property_type.push_back(PropertyType::single_family);
-    a.purpose.push_back(Purpose::purchase);
-    a.documentation.push_back(Documentation::full);
+    a.property_type.push_back(t.property_type);
+    a.purpose.push_back(t.purpose);
+    a.documentation.push_back(t.documentation);
     std::uint8_t state = 0;
     if (!t.state.empty()) {
       const std::optional<std::uint8_t> index = state_index(t.state);
