@@ -344,7 +344,7 @@ void step_month(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
 // section 4): each loan's MDR from its age, fixed multipliers and updated-LTV band; its SMM from
 // turnover and the refinance S-curve in its incentive (burnout, score and LTV applied); its
 // recovery from the property value at sale. Liquidations are kept per slot and added by lag group.
-template <bool kTotals>
+template <bool kTotals, bool kBaseByAge, bool kTurnoverByAge>
 void step_model(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
   const ModelTables& m = *in.model;
   const double* const base_table = m.base_mdr.by_month.data();
@@ -352,6 +352,9 @@ void step_model(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
   const int base_hold = m.base_mdr.hold, turnover_hold = m.turnover_smm.hold;
   const int base_age = m.base_mdr.clock == CurveClock::loan_age ? 1 : 0;
   const int turnover_age = m.turnover_smm.clock == CurveClock::loan_age ? 1 : 0;
+  // One value for the block when no loan needs its own lookup (see run_block).
+  const double base_now = base_table[base_age ? base_hold : lesser(t, base_hold)];
+  const double turnover_now = turnover_table[turnover_age ? turnover_hold : lesser(t, turnover_hold)];
   const double* const edges = m.ltv_edges.data();
   const double* const ltv_default = m.ltv_default.data();
   const double* const ltv_refi = m.ltv_refi.data();
@@ -386,12 +389,16 @@ void step_model(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
     // Updated LTV band (fixed slot when the tape has no value or the factor reads neutral).
     const double ltv = (begin + b.junior[i]) * b.inv_value[i] * inverse_house;
     int band = 0;
+#pragma GCC unroll 16
     for (int e = 0; e < kMaxLtvEdges; ++e) band += ltv >= edges[e] ? 1 : 0;
-    band = b.ltv_slot[i] >= 0 ? b.ltv_slot[i] : band;
+    const int slot = b.ltv_slot[i];  // (loads kept out of the selects: no branches)
+    band = slot >= 0 ? slot : band;
     // Default: rolling delinquents first, then the base curve times the loan's multipliers.
-    const double hazard = base_table[lesser(base_age * b.age[i] + t, base_hold)] *
-                          b.default_mult[i] * ltv_default[band];
-    double mdr = month <= b.roll_end[i] ? b.roll_mdr[i] : hazard;
+    const double base = kBaseByAge ? base_table[lesser(base_age * b.age[i] + t, base_hold)]
+                                   : base_now;
+    const double hazard = base * b.default_mult[i] * ltv_default[band];
+    const double rolling = b.roll_mdr[i];
+    double mdr = month <= b.roll_end[i] ? rolling : hazard;
     mdr = (mdr < 1.0 ? mdr : 1.0) * defaults_on;
     // Prepayment: turnover + refinance in the incentive, read to the nearest basis point.
     const double incentive = 12.0 * b.rate[i] - mortgage;
@@ -401,7 +408,9 @@ void step_model(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
         refi_table[static_cast<int>(point)] * b.refi_mult[i] * ltv_refi[band] * b.burnout[i];
     b.burnout[i] *= greater(0.0, 1.0 - burnout_rate * greater(0.0, incentive));
     const double turnover =
-        turnover_table[lesser(turnover_age * b.age[i] + t, turnover_hold)] * ltv_turnover[band];
+        (kTurnoverByAge ? turnover_table[lesser(turnover_age * b.age[i] + t, turnover_hold)]
+                        : turnover_now) *
+        ltv_turnover[band];
     double smm = (refi + turnover) * prepay_multiplier;
     smm = smm < 1.0 ? smm : 1.0;
 
@@ -533,10 +542,14 @@ void run_block(const EngineInputs& in, Block& b, BlockCoupons& coupons, ChunkSum
   };
   int due = next_change(coupons);  // month of the next coupon change
   if (in.model) {
-    const auto step = step_model<kTotals>;
+    constexpr MonthStep kModelSteps[4] = {
+        step_model<kTotals, false, false>, step_model<kTotals, false, true>,
+        step_model<kTotals, true, false>, step_model<kTotals, true, true>};
     for (int t = 1; t <= b.months; ++t) {
       if (t >= due) due = apply_coupon_changes(in, b, coupons, t);
-      step(in, b, t, sums);
+      const int key = (per_loan(in.model->base_mdr, t) ? 2 : 0) +
+                      (per_loan(in.model->turnover_smm, t) ? 1 : 0);
+      kModelSteps[key](in, b, t, sums);
     }
     return;
   }
@@ -568,8 +581,10 @@ void project_chunk(const EngineInputs& in, std::size_t first, std::size_t last, 
   const auto loop = in.loan_totals ? run_block<true> : run_block<false>;
   auto block = std::make_unique<Block>();
   auto coupons = std::make_unique<BlockCoupons>();
-  for (std::size_t start = first; start < last; start += kBlockLoans) {
-    load_block(in, start, std::min(kBlockLoans, last - start), *block);
+  // The model's block state is larger (its per-loan terms): half a block keeps it in L1.
+  const std::size_t size = in.model ? kBlockLoans / 2 : kBlockLoans;
+  for (std::size_t start = first; start < last; start += size) {
+    load_block(in, start, std::min(size, last - start), *block);
     coupon_events(in, *block, *coupons);
     loop(in, *block, *coupons, sums);
     if (in.loan_totals) store_totals(*block, *in.loan_totals);
