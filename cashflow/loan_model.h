@@ -13,7 +13,7 @@ namespace poolbid::detail {
 
 // Distinct updated-LTV bounds the loop compares against (the union of the three LTV tables'); the
 // loop always makes this many comparisons, unused ones against +infinity.
-inline constexpr int kMaxLtvEdges = 15;
+inline constexpr int kMaxLtvEdges = 10;
 // Incentive grid of the refinance table: -6% to +6% by 1 bp; incentives beyond read the end.
 inline constexpr double kIncentiveLow = -0.06;
 inline constexpr double kIncentiveStep = 0.0001;
