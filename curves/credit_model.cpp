@@ -295,7 +295,7 @@ CreditModel default_credit_model() {
   m.cured_multiplier = 2.0;
   m.assumed_ltv = 0.80;
 
-  m.distressed_discount = 0.20;
+  m.distressed_discount = 0.30;
   m.sale_cost = 0.07;
   m.carrying_cost = 0.03;
   m.foreclosure_cost = 6000;
