@@ -47,8 +47,7 @@ bool shifts(const CurveShift& shift) {
 }
 
 // The loan-level model's run on one curve, or none without a model.
-std::optional<ModelRun> run_on(const LoanArrays& loans, const YieldCurve& curve,
-                               const BidRequest& request, int horizon) {
+std::optional<ModelRun> run_on(const YieldCurve& curve, const BidRequest& request, int horizon) {
   if (!request.model) return std::nullopt;
   return model_run(*request.model, request.scenario, curve, request.settlement.cutoff, horizon,
                    request.neutral);
@@ -146,7 +145,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& given_curve,
   probe.model = request.model;
   const int horizon =
       projection_horizon(loans, request.assumptions, request.model ? &probe : nullptr);
-  const std::optional<ModelRun> run = run_on(loans, curve, request, horizon);
+  const std::optional<ModelRun> run = run_on(curve, request, horizon);
   const PaymentGrid grid = payment_grid(curve, settlement, horizon);
   result.accrued =
       accrued_interest(balance, result.net_coupon, settlement.cutoff, settlement.settle);
@@ -201,10 +200,19 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& given_curve,
   result.expected_loss_pct = result.expected_loss / balance * 100;
   result.cum_default_pct = defaults / balance * 100;
   result.severity_pct = defaults > 0 ? result.expected_loss / defaults * 100 : 0.0;
+  // Per-loan values at the pool's loss-adjusted yield, with and without losses.
+  auto value_loans = [&] {
+    if (!request.loan_values) return;
+    const std::span<const double> discount = discount_at(result.loss_adjusted.cfy);
+    if (!values_now)
+      result.flows = project_with(loans, coupons, request.assumptions, request, true, discount,
+                                  pointer(run));
+    result.no_loss_loan_values =
+        project_with(loans, coupons, no_loss, request, true, discount, pointer(run), true)
+            .loans.present_value;
+  };
   if (!request.risk) {
-    if (request.loan_values && !values_now)
-      result.flows = project_with(loans, coupons, request.assumptions, request, true,
-                                  discount_at(result.loss_adjusted.cfy), pointer(run));
+    value_loans();
     return result;
   }
 
@@ -246,7 +254,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& given_curve,
   auto value_on = [&](const YieldCurve& moved) {
     std::vector<double> moved_cash = steady_cash;
     if (all_move) {
-      const std::optional<ModelRun> moved_run = run_on(loans, moved, request, horizon);
+      const std::optional<ModelRun> moved_run = run_on(moved, request, horizon);
       const PoolFlows p = project_with(loans, coupons_on(loans, moved, request, horizon),
                                        request.assumptions, request, false, {},
                                        pointer(moved_run))
@@ -279,9 +287,7 @@ BidResult price_pool(const LoanArrays& loans, const YieldCurve& given_curve,
     result.key_rate_durations.push_back({keys[k], (key_down - key_up) / (2 * base_pv * shock)});
   }
 
-  if (request.loan_values && !values_now)
-    result.flows = project_with(loans, coupons, request.assumptions, request, true,
-                                discount_at(result.loss_adjusted.cfy), pointer(run));
+  value_loans();
   return result;
 }
 

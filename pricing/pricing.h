@@ -127,6 +127,9 @@ struct BidResult {
   Projection flows;              // loss-adjusted; with loan totals (present_value at the pool's
                                  // cash-flow yield) when BidRequest::loan_values
   PoolFlows no_loss_flows;
+  // With BidRequest::loan_values: each loan's no-loss cash valued at the pool's loss-adjusted
+  // cash-flow yield, dollars (tape order); empty otherwise.
+  std::vector<double> no_loss_loan_values;
 };
 
 // Projects the pool under the request's assumptions (ARMs on coupon paths from the curve), solves
@@ -204,7 +207,9 @@ struct LoanDecision {
   double expected_loss_pct = 0;    // percent of the cut-off balance
   double value = 0;                // dollars: its cash at the pool's loss-adjusted yield
   double value_price = 0;          // value per 100 of balance
-  double allocated = 0;            // dollars: the pool's dirty price x the loan's balance
+  double allocated = 0;            // dollars: the bid's dirty value x the loan's share of the
+                                   // pool's no-loss value (coupon and term priced, credit not)
+  double allocated_price = 0;      // allocated per 100 of balance
   double severity = 0;             // loss / defaults if it defaults, else bad_loan_loss
   bool modelled_severity = false;  // severity from its own defaults
   double break_even = 0;           // its p* at `severity`
@@ -237,8 +242,9 @@ struct KickoutResult {
 };
 
 // Prices every loan (loan values on), decides each loan (outside the box, value below its
-// allocated price -- the pool's dirty price x its balance --, or lifetime default probability above
-// its break-even), then prices the kept loans at the same target. A value counts as below when it
+// allocated price -- the bid's dirty value shared out by no-loss value at the pool's yield, so a
+// loan's coupon and term are paid for and only its credit can put it below --, or lifetime
+// default probability above its break-even), then prices the kept loans at the same target. A value counts as below when it
 // is under the allocation by more than 1e-9 of the balance (rounding). Throws what price_pool
 // throws, and std::invalid_argument for bad economics.
 KickoutResult price_with_kickouts(const LoanArrays& loans, const YieldCurve& curve,
@@ -365,5 +371,34 @@ OutcomeMatrix outcome_matrix(std::span<const NamedPool> pools, std::span<const S
                              const MatrixOptions& options = {});
 
 // ---- Repricing a held pool after a shock --------------------------------------------------------
+// pricing/shock.cpp. A risk desk holds a pool at a known clean price. Valued at that price under a
+// base scenario, it has a loss-adjusted Z-spread; the shocked scenario (its house prices,
+// multipliers and rate shock, which moves the curve) is then valued at that same Z-spread. The
+// difference is the shock's P&L. Both views run the loan-level model.
+struct ShockRequest {
+  // The held pool: target price with value = the held clean price (percent of cut-off UPB), the
+  // settlement, the model (not null) and the base scenario in `held.scenario`; advancing, shock_bp
+  // (effective duration), key-rate tenors, threads and loan_values as price_pool reads them.
+  BidRequest held;
+  Scenario shocked;  // the scenario after the shock
+};
+
+struct ShockResult {
+  BidResult before;  // under the base scenario at the held price
+  BidResult after;   // under the shocked scenario at before.loss_adjusted.z_spread
+  double pnl = 0;                   // after.clean_value - before.clean_value, dollars
+  double pnl_points = 0;            // after.clean_price - before.clean_price, percent of UPB
+  double expected_loss_change = 0;  // after.expected_loss - before.expected_loss, dollars
+  double expected_loss_change_pct = 0;  // the same, percent of the cut-off UPB
+  // With held.loan_values: each loan's value after less its value before (dollars, tape order;
+  // each value at its own view's pool cash-flow yield, so the entries add up to `pnl`, the
+  // accrued interest being the same on both sides).
+  std::vector<double> loan_pnl;
+};
+
+// Throws std::invalid_argument unless held.model is set and held.target is BidTarget::price, and
+// whatever price_pool throws (PricingError when the held price has no Z-spread).
+ShockResult reprice_after_shock(const LoanArrays& loans, const YieldCurve& curve,
+                                const ShockRequest& request);
 
 }  // namespace poolbid

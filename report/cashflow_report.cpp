@@ -16,6 +16,7 @@
 #include "cashflow/cashflow.h"
 #include "curves/curves.h"
 #include "report/format.h"
+#include "report/model_parts.h"
 #include "report/report.h"
 #include "tape/tape.h"
 
@@ -88,9 +89,12 @@ PoolTotals totals(const PoolFlows& p) {
 
 // ---- Text report --------------------------------------------------------------------------------
 
+// With the model, its section stands in for the pool-wide curves (only advancing is read).
 std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days,
-                             const YieldCurve* arm_curve) {
-  detail::TextTable table{{}, {Align::left, Align::left}, detail::assumption_rows(a)};
+                             const YieldCurve* arm_curve, const ModelNote* model) {
+  detail::TextTable table{{}, {Align::left, Align::left},
+                          model ? std::vector<std::vector<std::string>>{}
+                                : detail::assumption_rows(a)};
   table.rows.push_back(
       {"ARM coupons",
        arm_curve ? fmt::format("reset on the index forwards of {} (as of {})",
@@ -102,7 +106,7 @@ std::string assumptions_text(const Assumptions& a, Date cutoff, int delay_days,
        fmt::format("{} (month 1 paid {})",
                    detail::count_of(static_cast<std::size_t>(delay_days), "day", "days"),
                    detail::iso_date(payment_date(cutoff, 1, delay_days)))});
-  return detail::render(table);
+  return (model ? detail::model_section(*model, a) : std::string()) + detail::render(table);
 }
 
 std::string percent_of_upb(double amount, double upb) {
@@ -286,12 +290,14 @@ void write_loan_flows_csv(std::ostream& stream, const LoanArrays& loans, const L
 }
 
 std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
-                          const PoolFlows& pool, int delay_days, const YieldCurve* arm_curve) {
+                          const PoolFlows& pool, int delay_days, const YieldCurve* arm_curve,
+                          const ModelNote* model) {
   const Date cutoff = cutoff_of(tape);
   check_sizes(pool);
   std::string out = fmt::format("poolbid cashflows: {}\ncut-off date: {}\n\nassumptions\n",
                                 detail::display_text(tape.file, 200), detail::iso_date(cutoff));
-  out += assumptions_text(assumptions, cutoff, delay_days, arm_curve);
+  out += assumptions_text(assumptions, cutoff, delay_days, arm_curve, model);
+  if (model) out += detail::explanation_section(*model);
   out += "\npool\n";
   out += summary_text(tape, pool, assumptions, cutoff, delay_days);
 
@@ -312,7 +318,8 @@ std::string cashflow_text(const TapeRead& tape, const Assumptions& assumptions,
 }
 
 std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
-                          const PoolFlows& pool, int delay_days, const YieldCurve* arm_curve) {
+                          const PoolFlows& pool, int delay_days, const YieldCurve* arm_curve,
+                          const ModelNote* model) {
   const Date cutoff = cutoff_of(tape);
   check_sizes(pool);
   const PoolTotals t = totals(pool);
@@ -347,7 +354,8 @@ std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
       {"file", tape.file},
       {"cutoff_date", detail::iso_date(cutoff)},
       {"payment_delay_days", delay_days},
-      {"assumptions", detail::assumptions_json(assumptions)},
+      {"assumptions", model ? detail::model_assumptions_json(assumptions)
+                            : detail::assumptions_json(assumptions)},
       {"arm_curve", arm_curve ? Json{{"source", arm_curve->source},
                                      {"as_of", detail::iso_date(arm_curve->as_of)}}
                               : Json(nullptr)},
@@ -356,6 +364,8 @@ std::string cashflow_json(const TapeRead& tape, const Assumptions& assumptions,
       {"rejected", detail::rejected_json(tape)},
       {"caution", std::string(caution_text())},
   };
+  if (model) document = detail::insert_after(document, "assumptions", "model",
+                                             detail::model_json(*model));
   return detail::dump_json(document);
 }
 

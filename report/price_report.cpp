@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <optional>
 #include <stdexcept>
 #include <string>
 #include <utility>
@@ -17,6 +18,7 @@
 #include "curves/curves.h"
 #include "pricing/pricing.h"
 #include "report/format.h"
+#include "report/model_parts.h"
 #include "report/report.h"
 #include "tape/tape.h"
 
@@ -186,7 +188,8 @@ std::string views_section(const BidResult& r) {
   return detail::render(table);
 }
 
-std::string credit_section(const BidResult& r) {
+// With the model: its lifetime defaults and severity too.
+std::string credit_section(const BidResult& r, bool model) {
   detail::TextTable table{{}, {Align::left, Align::right, Align::left}, {}};
   table.rows = {
       {"credit cost", detail::fixed_or_dash(r.credit_cost_bp, kBpDecimals) + " bp",
@@ -195,6 +198,13 @@ std::string credit_section(const BidResult& r) {
        fmt::format("{}% of cut-off UPB", detail::fixed_or_dash(r.expected_loss_pct,
                                                                kLossPctDecimals))},
   };
+  if (model) {
+    table.rows.push_back({"lifetime defaults",
+                          detail::fixed_or_dash(r.cum_default_pct, kLossPctDecimals) + "%",
+                          "of cut-off UPB, as the model projects them"});
+    table.rows.push_back({"loss severity", detail::fixed_or_dash(r.severity_pct, 2) + "%",
+                          "lifetime loss / lifetime defaults"});
+  }
   return detail::render(table);
 }
 
@@ -211,6 +221,12 @@ std::string risk_section(const BidResult& r, const BidRequest& request) {
                           years(k.duration), "that tenor's zero rate alone, as a triangle"});
   table.rows.push_back({"ARM loans on coupon paths", count_text(r.arm_loans),
                         "coupons from the curve's index forwards"});
+  if (request.model)
+    return fmt::format("risk (curve moved up and down {} bp, every loan re-projected, Z-spread "
+                       "held; durations in years)\n{}"
+                       "  (the model's refinancing reads the market mortgage rate, so "
+                       "prepayments and ARM coupons\n   move with the curve)\n",
+                       short_number(request.shock_bp), detail::render(table));
   return fmt::format("risk (curve moved up and down {} bp, cash flows re-projected, Z-spread "
                      "held; durations in years)\n{}"
                      "  (the prepayment and default curves do not read rates: only ARM coupons "
@@ -238,6 +254,31 @@ Date cutoff_of(const TapeRead& tape, const BidRequest& request) {
         "price report: the tape's cut-off {} differs from the settlement's cut-off {}",
         detail::iso_date(*tape.cutoff), detail::iso_date(cutoff)));
   return cutoff;
+}
+
+// The model note a report shows: the caller's, or one made from the request (tables named
+// "built-in" or "custom"); null without a model.
+struct ModelView {
+  std::optional<ModelNote> made;
+  const ModelNote* note = nullptr;
+};
+ModelView model_view(const BidRequest& request, const ModelNote* given) {
+  ModelView view;
+  if (!request.model) return view;
+  if (given) {
+    view.made = *given;
+  } else {
+    view.made = ModelNote{detail::tables_name(*request.model), "", nullptr, nullptr};
+  }
+  if (!view.made->scenario) view.made->scenario = &request.scenario;
+  view.note = &*view.made;
+  return view;
+}
+
+// The curve valued on: with the model, the given curve moved by the scenario's rate shock.
+const YieldCurve& valued_curve(const YieldCurve& curve, const BidRequest& request,
+                               const BidResult& result) {
+  return request.model && result.curve.term_structure ? result.curve : curve;
 }
 
 // ---- JSON pieces --------------------------------------------------------------------------------
@@ -313,9 +354,12 @@ void put_value_rows(CsvBuffer& out, const LoanArrays& loans, const LoanFlows& f,
 
 }  // namespace
 
-std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidRequest& request,
-                       const BidResult& result) {
+std::string price_text(const TapeRead& tape, const YieldCurve& given_curve,
+                       const BidRequest& request, const BidResult& result,
+                       const ModelNote* model_note) {
   const Date cutoff = cutoff_of(tape, request);
+  const YieldCurve& curve = valued_curve(given_curve, request, result);
+  const ModelView model = model_view(request, model_note);
   const int delay = request.settlement.delay_days;
   std::string out = fmt::format("poolbid price: {}\n", detail::display_text(tape.file, 200));
   out += fmt::format("loans priced: {} (UPB {}), net coupon {}%\n",
@@ -330,8 +374,14 @@ std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidR
 
   out += "\ncurve\n";
   out += curve_section(curve);
-  out += "\nassumptions (loss-adjusted view; the no-loss view turns defaults off)\n";
-  out += assumptions_section(request.assumptions);
+  if (model.note) {
+    out += "\nmodel (loss-adjusted view; the no-loss view turns defaults off)\n";
+    out += detail::model_section(*model.note, request.assumptions);
+    out += detail::explanation_section(*model.note);
+  } else {
+    out += "\nassumptions (loss-adjusted view; the no-loss view turns defaults off)\n";
+    out += assumptions_section(request.assumptions);
+  }
   out += fmt::format("\ntarget: {}\n", target_text(request));
 
   out += "\nbid (price in % of cut-off UPB, value in dollars)\n";
@@ -339,7 +389,7 @@ std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidR
   out += "\nat the bid\n";
   out += views_section(result);
   out += "\ncredit\n";
-  out += credit_section(result);
+  out += credit_section(result, model.note != nullptr);
   out += '\n';
   out += risk_section(result, request);
 
@@ -347,9 +397,12 @@ std::string price_text(const TapeRead& tape, const YieldCurve& curve, const BidR
   return out;
 }
 
-std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidRequest& request,
-                       const BidResult& result) {
+std::string price_json(const TapeRead& tape, const YieldCurve& given_curve,
+                       const BidRequest& request, const BidResult& result,
+                       const ModelNote* model_note) {
   const Date cutoff = cutoff_of(tape, request);
+  const YieldCurve& curve = valued_curve(given_curve, request, result);
+  const ModelView model = model_view(request, model_note);
   const BidResult& r = result;
   Json document = {
       {"file", tape.file},
@@ -357,7 +410,8 @@ std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidR
       {"settlement_date", detail::iso_date(request.settlement.settle)},
       {"payment_delay_days", request.settlement.delay_days},
       {"curve", curve_json(curve)},
-      {"assumptions", detail::assumptions_json(request.assumptions)},
+      {"assumptions", model.note ? detail::model_assumptions_json(request.assumptions)
+                                 : detail::assumptions_json(request.assumptions)},
       {"target", Json{{"kind", std::string(target_name(request.target))},
                       {"value", number_or_null(request.value)}}},
       {"bid", Json{{"clean_price", number_or_null(r.clean_price)},
@@ -386,6 +440,12 @@ std::string price_json(const TapeRead& tape, const YieldCurve& curve, const BidR
       {"rejected", detail::rejected_json(tape)},
       {"caution", std::string(caution_text())},
   };
+  if (model.note) {
+    document = detail::insert_after(document, "assumptions", "model",
+                                    detail::model_json(*model.note));
+    document["credit"]["cum_default_pct"] = number_or_null(r.cum_default_pct);
+    document["credit"]["severity_pct"] = number_or_null(r.severity_pct);
+  }
   return detail::dump_json(document);
 }
 
