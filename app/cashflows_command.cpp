@@ -65,13 +65,16 @@ void check_outputs(const CashflowArgs& args) {
 int run_cashflows(const CashflowArgs& args) {
   check_outputs(args);
   args.model.refuse_with(args.assumption);
+  if (args.model.explain && !args.csv.empty())
+    throw UsageError("--explain adds the loan's explanation to the text or JSON report, which "
+                     "--csv replaces with the monthly table: leave out --csv, or use --json");
   if (args.model.used() && args.curve.empty())
     throw UsageError(fmt::format("{}: the loan-level model needs a yield curve for the market "
                                  "mortgage rate its refinancing reads: give --curve FILE or a "
                                  "flat --curve RATE",
                                  args.model.option_given()));
   const ReadOptions read_options = args.tape.read_options();
-  const Assumptions assumptions = args.assumption.assumptions();
+  const Assumptions assumptions = args.assumption.assumptions(args.model.used());
   std::optional<CreditModel> credit_model;
   std::optional<Scenario> scenario;
   if (args.model.used()) {

@@ -58,7 +58,8 @@ void PoolArgs::add_to(CLI::App& cmd, bool scenario_option) {
                    "scenario the model runs under: house prices, rate shock, multipliers "
                    "(default base)");
   cmd.add_option("--advancing", advancing,
-                 "what the servicer advances on defaulted loans: none (default) or interest");
+                 "what the servicer advances on defaulted loans: interest (default with the model: "
+                 "repaid from the sale, so severity counts the interest lost) or none");
   cmd.add_option("--settle", settle,
                  "settlement date YYYY-MM-DD (default: the cut-off date, or the curve's date "
                  "if later)");

@@ -47,7 +47,7 @@ struct PoolRun {
   Settlement settlement;
   BidTarget target = BidTarget::yield;
   double target_value = 0;
-  Advancing advancing = Advancing::none;
+  Advancing advancing = Advancing::interest;  // the model's default (see AssumptionArgs)
   unsigned threads = 0;
   std::optional<int> stop;  // an exit code when a tape had no accepted loan
 

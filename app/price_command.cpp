@@ -168,7 +168,7 @@ int run_price(const PriceArgs& args) {
                                          {"the scenarios file", args.model.scenarios_file}});
   const ReadOptions read_options = args.tape.read_options();
   const std::vector<double> key_rate_years = args.key_rate_years();
-  const Assumptions assumptions = args.assumption.assumptions();
+  const Assumptions assumptions = args.assumption.assumptions(args.model.used());
   const std::optional<Date> settle_given = parse_settle(args.settle);
   std::optional<CreditModel> credit_model;
   if (args.model.used()) credit_model = args.model.credit_model();

@@ -92,6 +92,9 @@ int run_shock(const ShockArgs& args) {
   held.model = &credit_model;
   held.scenario = base;
   held.key_rate_years = {};  // effective duration only
+  // The servicer advances interest until the sale and is repaid from it, so the severity counts
+  // the interest lost while a defaulted loan waits (DESIGN.md section 7).
+  held.assumptions.advancing = Advancing::interest;
   held.threads = args.threads;
   held.loan_values = !args.loans.empty();
   request.shocked = shocked;

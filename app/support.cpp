@@ -215,13 +215,18 @@ void AssumptionArgs::add_to(CLI::App& cmd) {
                  "(default 40)");
   cmd.add_option("--lag", lag, "months from default to liquidation (default 12)");
   cmd.add_option("--advancing", advancing,
-                 "what the servicer advances on defaulted loans: none (default) or interest");
+                 "what the servicer advances on defaulted loans: none or interest (default none; "
+                 "interest with the loan-level model)");
   cmd.add_flag("--delinquent-default", delinquent_default,
                "loans 90+ days delinquent or in foreclosure default in month 1");
 }
 
-Assumptions AssumptionArgs::assumptions() const {
+Assumptions AssumptionArgs::assumptions(bool model) const {
   Assumptions a;
+  // With the loan-level model the servicer advances interest unless told otherwise: repaid from
+  // the sale, so the loss and severity count the interest lost while a loan waits (DESIGN.md
+  // section 7).
+  if (model) a.advancing = Advancing::interest;
   if (!file.empty()) a = load_assumptions(file, a);
   if (prepay) a.prepay = parse_prepay(*prepay);
   if (default_rate) a.default_rate = parse_default(*default_rate);

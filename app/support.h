@@ -113,7 +113,7 @@ struct AssumptionArgs {
 
   void add_to(CLI::App& cmd);
   // The assumptions file, if any, then each option given over it. Throws AssumptionError.
-  Assumptions assumptions() const;
+  Assumptions assumptions(bool model = false) const;  // model: advancing defaults to interest
   // The pool-wide curve options given on the command line ("--prepay", ...), for refusing them
   // beside the loan-level model; --advancing is not among them (the model reads it).
   std::vector<std::string> curve_options_given() const;

@@ -81,6 +81,24 @@ TEST_F(ModelCli, PoolWideCurveOptionsBesideTheModelAreRefusedNamingBoth) {
             Ordered({{"advancing", "interest"}}));
 }
 
+TEST_F(ModelCli, AnExplanationBesideACsvTableIsRefused) {
+  // The table replaces the report the explanation would go in: refused rather than dropped.
+  const Outcome r = cashflows({"--curve", "4.5", "--explain", "BHL-000002", "--csv", "-"});
+  EXPECT_EQ(r.exit_code, kUsage) << r;
+  EXPECT_TRUE(contains(r.err, "--explain")) << r;
+  EXPECT_TRUE(r.out.empty()) << r;
+}
+
+TEST_F(ModelCli, TheModelAdvancesInterestUnlessToldOtherwise) {
+  // Severity then counts the interest lost while a defaulted loan awaits sale.
+  const Outcome given = price({"--model", "--json"});
+  ASSERT_EQ(given.exit_code, kOk) << given;
+  EXPECT_TRUE(contains(given.out, R"("advancing": "interest")")) << given;
+  const Outcome none = price({"--model", "--advancing", "none", "--json"});
+  ASSERT_EQ(none.exit_code, kOk) << none;
+  EXPECT_TRUE(contains(none.out, R"("advancing": "none")")) << none;
+}
+
 TEST_F(ModelCli, AnUnknownScenarioListsTheNamesThereAre) {
   for (const Outcome& r : {cashflows({"--curve", "4.5", "--scenario", "doom"}),
                            price({"--scenario", "doom"})}) {
