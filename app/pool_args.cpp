@@ -134,7 +134,13 @@ PoolRun prepare_pools(const PoolArgs& args, std::string_view command) {
   run.model = args.model.credit_model();
   run.model_source = args.model.model_file;
   run.scenarios = args.model.scenario_set();
-  if (args.one_scenario) run.scenario = find_scenario(run.scenarios, args.model.scenario_name());
+  if (args.one_scenario) {
+    const bool has_base = std::any_of(run.scenarios.begin(), run.scenarios.end(),
+                                      [](const Scenario& s) { return s.name == "base"; });
+    run.scenario = !args.model.scenario && !has_base && !run.scenarios.empty()
+                       ? run.scenarios.front()
+                       : find_scenario(run.scenarios, args.model.scenario_name());
+  }
   CurveOption curve_option{args.curve, std::nullopt};
   curve_option.load();
 

@@ -3,6 +3,7 @@
 
 #include <fmt/core.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <charconv>
 #include <chrono>
@@ -301,6 +302,11 @@ std::vector<Scenario> ModelArgs::scenario_set() const {
 
 Scenario ModelArgs::chosen_scenario() const {
   const std::vector<Scenario> set = scenario_set();
+  // Not named: "base", or the set's first scenario when it has none (as `matrix` reads its
+  // common price).
+  if (!scenario && !set.empty() &&
+      std::none_of(set.begin(), set.end(), [](const Scenario& s) { return s.name == "base"; }))
+    return set.front();
   return find_scenario(set, scenario_name(), "--scenario");
 }
 

@@ -220,6 +220,8 @@ LoanExplanation explain_loan(const LoanArrays& loans, std::size_t index, const M
     line.factor = std::string(to_string(f));
     line.value = number(value * scale, format);
     line.band = band_label(table, band_index(table, value), scale);
+    if (refi && band_label(*refi, band_index(*refi, value), scale) != line.band)
+      line.band += " (refinance " + band_label(*refi, band_index(*refi, value), scale) + ")";
     if (!(t.neutral & factor_bit(f))) {
       line.default_multiplier = band_value(table, value);
       if (refi) line.prepay_multiplier = band_value(*refi, value);
