@@ -137,6 +137,7 @@ LoanTerms loan_terms(const ModelTables& t, const LoanArrays& l, std::size_t i) {
     terms.roll_months = t.roll_months[dq];
     terms.roll_mdr = t.roll_mdr[dq];
     d *= t.cured_multiplier;
+    terms.refi_multiplier *= m.delinquent_refi;
   }
   terms.default_multiplier = d;
 
@@ -292,6 +293,7 @@ LoanExplanation explain_loan(const LoanArrays& loans, std::size_t index, const M
       line.band = fmt::format("rolls {:.0f}% to default over {} months, then x{:g}",
                               e.roll_share * 100, e.roll_months, t.cured_multiplier);
       line.default_multiplier = t.cured_multiplier;
+      line.prepay_multiplier = m.delinquent_refi;
     } else if (t.neutral & factor_bit(Factor::delinquency)) {
       line.band += " (read neutral)";
     }

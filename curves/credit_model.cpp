@@ -33,7 +33,7 @@ constexpr std::string_view kKeys =
     "occupancy_default, purpose_default, property_default, delinquency_roll, cured_multiplier, "
     "assumed_ltv, distressed_discount, sale_cost, carrying_cost, foreclosure_cost, "
     "timeline_months, default_timeline_months, turnover, refi_max_cpr, refi_midpoint, refi_width, "
-    "burnout, score_refi, ltv_refi, ltv_turnover, description";
+    "burnout, score_refi, ltv_refi, ltv_turnover, delinquent_refi, description";
 
 // The categories each table takes: the tape's spellings (tape/tape.h to_string, without
 // "unknown", which reads `missing`). tests/curves/credit_model_test.cpp checks them against tape/.
@@ -325,6 +325,7 @@ CreditModel default_credit_model() {
   m.score_refi = {{620, 680, 740}, {0.4, 0.65, 0.85, 1.0}, 0.7};
   m.ltv_refi = {{0.8, 0.9, 1.0, 1.1}, {1.0, 0.85, 0.5, 0.08, 0.03}, 0.8};
   m.ltv_turnover = {{1.0, 1.1}, {1.0, 0.7, 0.5}, 1.0};
+  m.delinquent_refi = 0.1;
   return m;
 }
 
@@ -395,6 +396,8 @@ CreditModel parse_credit_model(std::string_view json_text, std::string_view sour
       m.ltv_refi = band_at(file, value, source_name, key, Bounds::percent);
     } else if (key == "ltv_turnover") {
       m.ltv_turnover = band_at(file, value, source_name, key, Bounds::percent);
+    } else if (key == "delinquent_refi") {
+      m.delinquent_refi = multiplier_at(value, place);
     } else if (key == "description") {
       if (!value.is_string()) model_fail(place, value, "must be text");
     } else {
@@ -441,6 +444,7 @@ std::string credit_model_json(const CreditModel& m) {
   doc["score_refi"] = band_json(m.score_refi, Bounds::points);
   doc["ltv_refi"] = band_json(m.ltv_refi, Bounds::percent);
   doc["ltv_turnover"] = band_json(m.ltv_turnover, Bounds::percent);
+  doc["delinquent_refi"] = detail::plain_number(m.delinquent_refi);
   return detail::laid_out(doc);
 }
 

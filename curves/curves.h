@@ -355,6 +355,9 @@ struct CreditModel {
   double refi_max_cpr = 0, refi_midpoint = 0, refi_width = 0.0025;  // decimals
   double burnout = 0;          // per month per percentage point of incentive
   BandTable score_refi, ltv_refi, ltv_turnover;
+  // Refinance multiplier for a loan delinquent at cut-off (one that rolls): a borrower behind on
+  // payments can rarely refinance. Held for the loan's life.
+  double delinquent_refi = 1.0;
 
   bool operator==(const CreditModel&) const = default;
 };

@@ -216,6 +216,21 @@ TEST(LoanModel, FullUpdatedLtvBarelyRefinances) {
   }
 }
 
+TEST(LoanModel, DelinquentBorrowersBarelyRefinance) {
+  ModelCase run;
+  run.curve = flat_yield_curve(0.02, kCutoff);  // a large incentive
+  TestLoan current = base_loan();
+  current.rate = 0.075;
+  TestLoan late = current;
+  late.delinquency = Delinquency::dq60;
+  ModelRun kept;
+  run.project(make_loans({current}), &kept);
+  const LoanExplanation a = explain_loan(make_loans({current}), 0, kept);
+  const LoanExplanation b = explain_loan(make_loans({late}), 0, kept);
+  EXPECT_GT(a.refi_cpr_month1, 0.20);
+  EXPECT_LT(b.refi_cpr_month1, 0.2 * a.refi_cpr_month1);
+}
+
 // Month 1 of a one-loan projection reads the same rates as the explanation.
 TEST(LoanModel, ExplanationMatchesTheLoop) {
   ModelCase run;
