@@ -8,11 +8,9 @@
 #include "curves/curve_forms.h"
 
 namespace poolbid {
-namespace {
+namespace detail {
 
-// The shortest percent text that reads back to `decimal` exactly (0.07 -> "7", 1/3 ->
-// "33.33333333333333"): the shortest round-trip digits of the decimal, point moved two places.
-std::string percent_text(double decimal) {
+std::string shortest_percent_text(double decimal) {
   if (decimal == 0) return "0";
   if (!std::isfinite(decimal)) return fmt::format("{}", decimal);  // no parser accepts it
   char buffer[64];
@@ -42,6 +40,13 @@ std::string percent_text(double decimal) {
                      std::string_view(digits).substr(exponent + 1));
 }
 
+}  // namespace detail
+
+namespace {
+
+using detail::shortest_percent_text;
+
+
 std::string curve_text(const SpeedCurve& curve, detail::CurveKind kind) {
   const detail::KindInfo& info = detail::kind_info(kind);
   const std::string rate_head =
@@ -49,23 +54,23 @@ std::string curve_text(const SpeedCurve& curve, detail::CurveKind kind) {
   std::string text;
   switch (curve.shape) {
     case CurveShape::constant:
-      text = rate_head + percent_text(curve.value);
+      text = rate_head + shortest_percent_text(curve.value);
       break;
     case CurveShape::vector:
       text = rate_head;
       for (std::size_t i = 0; i < curve.values.size(); ++i)
-        text += (i == 0 ? "" : ",") + percent_text(curve.values[i]);
+        text += (i == 0 ? "" : ",") + shortest_percent_text(curve.values[i]);
       if (curve.values.empty()) text += "0";
       break;
     case CurveShape::ramp:
-      text = fmt::format("{}{}..{}/{}", rate_head, percent_text(curve.ramp_from),
-                         percent_text(curve.ramp_to), curve.ramp_months);
+      text = fmt::format("{}{}..{}/{}", rate_head, shortest_percent_text(curve.ramp_from),
+                         shortest_percent_text(curve.ramp_to), curve.ramp_months);
       break;
     case CurveShape::psa:
-      text = "psa:" + percent_text(curve.value);
+      text = "psa:" + shortest_percent_text(curve.value);
       break;
     case CurveShape::sda:
-      text = "sda:" + percent_text(curve.value);
+      text = "sda:" + shortest_percent_text(curve.value);
       break;
   }
   if (curve.clock != detail::default_clock(curve.shape))

@@ -56,6 +56,11 @@ double checked_multiple(CurveKind kind, Percent percent, Place place, std::strin
 // The compact text form of a curve of this kind (see curves.h), at `place`.
 SpeedCurve parse_curve(CurveKind kind, std::string_view text, Place place);
 
+// The shortest percent text that reads back to `decimal` exactly through hundredth (0.07 -> "7",
+// 0.011 -> "1.1", 1/3 -> "33.33333333333333"): the decimal's shortest round-trip digits with the
+// point moved two places.
+std::string shortest_percent_text(double decimal);
+
 // The clock a curve reads unless told otherwise: loan age for PSA and SDA, else projection month.
 CurveClock default_clock(CurveShape shape);
 

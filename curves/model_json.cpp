@@ -28,26 +28,6 @@ std::string range_text(double low, double high) {
   return fmt::format("from {} to {}", low, high);
 }
 
-// "-d.ddd" x 10^exponent written without an exponent where that stays short ("64.46", "0.0011"),
-// else as "-d.ddde<exponent>".
-std::string plain_digits(std::string_view mantissa, int exponent) {
-  std::string sign, digits;
-  for (const char c : mantissa) {
-    if (c == '-')
-      sign = "-";
-    else if (c != '.')
-      digits += c;
-  }
-  const int count = static_cast<int>(digits.size());
-  if (exponent < -6 || exponent > 20)
-    return fmt::format("{}{}{}{}e{}", sign, digits.front(), count > 1 ? "." : "",
-                       std::string_view(digits).substr(1), exponent);
-  if (exponent < 0) return fmt::format("{}0.{}{}", sign, std::string(-exponent - 1, '0'), digits);
-  if (exponent + 1 >= count) return sign + digits + std::string(exponent + 1 - count, '0');
-  return fmt::format("{}{}.{}", sign, std::string_view(digits).substr(0, exponent + 1),
-                     std::string_view(digits).substr(exponent + 1));
-}
-
 // Records the text of each number with a fraction or an exponent by its path, named as
 // json_duplicates.h names paths ("quotes[2].rate").
 class NumberRecorder : public nlohmann::json_sax<ordered_json> {
@@ -307,16 +287,7 @@ nlohmann::ordered_json percent_number(double decimal) {
   if (decimal == 0 || !std::isfinite(decimal)) return plain_number(decimal);
   // The decimal's shortest digits with the point moved two places: 0.011 -> "1.1" (not the
   // 1.0999999999999999 that 0.011 x 100 gives). hundredth reads them back to `decimal` exactly.
-  char buffer[64];
-  const auto end =
-      std::to_chars(buffer, buffer + sizeof buffer, decimal, std::chars_format::scientific).ptr;
-  const std::string_view digits(buffer, static_cast<std::size_t>(end - buffer));  // d.ddde-XX
-  const auto e = digits.find('e');
-  int exponent = 0;
-  std::string_view power = digits.substr(e + 1);
-  if (power.front() == '+') power.remove_prefix(1);
-  std::from_chars(power.data(), power.data() + power.size(), exponent);
-  const std::string percent = plain_digits(digits.substr(0, e), exponent + 2);
+  const std::string percent = shortest_percent_text(decimal);
   // Written as the double nearest them when that double's own text reads back the same
   // (110, 0.75); else as the digits themselves.
   double nearest = 0;
