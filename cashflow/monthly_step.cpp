@@ -231,6 +231,36 @@ int apply_coupon_changes(const EngineInputs& in, Block& b, BlockCoupons& coupons
   return next_change(coupons);
 }
 
+// One loan-month's flows (dollars) from steps 1-5 of DESIGN.md section 4.
+struct StepFlows {
+  double defaulted, gross, servicing, net, sched, prepay, end;
+};
+
+// Steps 1-5 for slot i at this month's MDR and SMM: defaults off the beginning balance; interest
+// on the performing balance, whose level payment scales with it; scheduled principal (the whole
+// performing balance in the final month); prepayment on what is left. Moves the slot's balance
+// and level payment on to the next month. Inlined into the vectorised loops.
+[[gnu::always_inline]] inline StepFlows step_balance(Block& b, std::size_t i, double month,
+                                                     double mdr, double smm) {
+  const double begin = b.balance[i];
+  const double defaulted = begin * mdr;
+  const double performing = begin - defaulted;
+  const bool interest_only = month <= b.io_end[i];
+  const bool final_month = month == b.last[i];
+  const double gross = performing * b.rate[i];
+  const double servicing = performing * b.fee[i];
+  const double net = performing * b.net[i];
+  const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
+  const double sched = final_month ? performing : payment - gross;
+  const double prepay = final_month ? 0.0 : smm * (performing - sched);
+  const double end = performing - sched - prepay;
+  b.balance[i] = end;
+  b.payment[i] = final_month      ? 0.0
+                 : interest_only ? end * b.io_factor[i]
+                                 : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
+  return {defaulted, gross, servicing, net, sched, prepay, end};
+}
+
 // One month of the loop for one block. Template flags: which curves need a per-loan table lookup
 // by loan age (rather than one value for the whole block this month), and whether per-loan totals
 // are kept.
@@ -272,25 +302,9 @@ void step_month(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
       severity = severity_table[lesser(b.age[i] + t, severity_hold)];
     mdr = greater(mdr, b.delinquent[i] * first_month);
 
-    // 1. Defaults off the beginning balance.
     const double begin = b.balance[i];
-    const double defaulted = begin * mdr;
-    const double performing = begin - defaulted;
-    // 2-4. Interest on the performing balance; the level payment scales with it.
-    const bool interest_only = month <= b.io_end[i];
-    const bool final_month = month == b.last[i];
-    const double gross = performing * b.rate[i];
-    const double servicing = performing * b.fee[i];
-    const double net = performing * b.net[i];
-    const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
-    const double sched = final_month ? performing : payment - gross;
-    // 5. Prepayment on what is left after scheduled principal.
-    const double prepay = final_month ? 0.0 : smm * (performing - sched);
-    const double end = performing - sched - prepay;
-    b.balance[i] = end;
-    b.payment[i] = final_month      ? 0.0
-                   : interest_only ? end * b.io_factor[i]
-                                   : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
+    const auto [defaulted, gross, servicing, net, sched, prepay, end] =
+        step_balance(b, i, month, mdr, smm);
     // 6-7. The defaulted balance is liquidated `lag` months on; advances come out of recovery.
     const double advance = defaulted * b.net[i];
     const double kept = greater(0.0, 1.0 - severity - b.net[i] * advance_months);
@@ -415,21 +429,8 @@ void step_model(const EngineInputs& in, Block& b, int t, ChunkSums& sums) {
     smm = smm < 1.0 ? smm : 1.0;
 
     // The monthly step, as in step_month.
-    const double defaulted = begin * mdr;
-    const double performing = begin - defaulted;
-    const bool interest_only = month <= b.io_end[i];
-    const bool final_month = month == b.last[i];
-    const double gross = performing * b.rate[i];
-    const double servicing = performing * b.fee[i];
-    const double net = performing * b.net[i];
-    const double payment = interest_only ? gross : b.payment[i] * (1.0 - mdr);
-    const double sched = final_month ? performing : payment - gross;
-    const double prepay = final_month ? 0.0 : smm * (performing - sched);
-    const double end = performing - sched - prepay;
-    b.balance[i] = end;
-    b.payment[i] = final_month      ? 0.0
-                   : interest_only ? end * b.io_factor[i]
-                                   : b.payment[i] * ((1.0 - mdr) * (1.0 - smm));
+    const auto [defaulted, gross, servicing, net, sched, prepay, end] =
+        step_balance(b, i, month, mdr, smm);
     // Liquidation `lag` months on: the property sold at the index then, less costs; advances
     // (net interest while waiting) come out of the proceeds.
     const double lag = b.lag[i];
