@@ -75,15 +75,9 @@ std::string bp_text(double spread) { return fixed_or_dash(1e4 * spread, 1); }
 
 namespace {
 
-// A number as typed, without trailing zeros: 250 -> "250", 12.5 -> "12.5", up to 4 places.
-std::string short_number(double x, bool sign = false) {
-  if (!std::isfinite(x)) return "-";
-  std::string text = sign ? fmt::format("{:+.4f}", x) : fmt::format("{:.4f}", x);
-  text.erase(text.find_last_not_of('0') + 1);
-  if (text.back() == '.') text.pop_back();
-  if (text == "-0" || text == "+0") text = sign ? "+0" : "0";
-  return text;
-}
+using detail::pool_view_json;
+using detail::short_number;
+
 
 bool shifts(const CurveShift& shift) {
   return shift.parallel_bp != 0 ||
@@ -237,17 +231,6 @@ Json run_json_head(std::span<const TapeRead* const> tapes, const YieldCurve& cur
   };
 }
 
-Json view_json(const PoolView& v) {
-  return Json{
-      {"cash_flow_yield", number_or_null(v.cfy)},
-      {"bey", number_or_null(v.bey)},
-      {"z_spread", number_or_null(v.z_spread)},
-      {"par_yield_at_wal", number_or_null(v.par_yield_at_wal)},
-      {"spread_at_wal", number_or_null(v.spread_at_wal)},
-      {"wal_years", number_or_null(v.wal_years)},
-      {"modified_duration", number_or_null(v.modified_duration)},
-  };
-}
 
 Json tape_json(const TapeRead& tape, std::string_view name) {
   return Json{{"name", std::string(name)},
@@ -574,8 +557,8 @@ Json strats_json_of(const Strats& s) {
 Json at_price_json(const PoolAtPrice& a) {
   return Json{{"clean_price", number_or_null(a.clean_price)},
               {"dirty_value", number_or_null(a.dirty_value)},
-              {"loss_adjusted", detail::view_json(a.loss_adjusted)},
-              {"no_loss", detail::view_json(a.no_loss)},
+              {"loss_adjusted", detail::pool_view_json(a.loss_adjusted)},
+              {"no_loss", detail::pool_view_json(a.no_loss)},
               {"credit_cost_bp", number_or_null(a.credit_cost_bp)},
               {"solved", a.solved}};
 }
@@ -680,8 +663,8 @@ std::string compare_json(std::span<const TapeRead* const> tapes, const YieldCurv
                              {"cum_loss_pct", number_or_null(p.cum_loss_pct)},
                              {"expected_loss", number_or_null(bid.expected_loss)},
                              {"wal_years", number_or_null(p.wal_years)},
-                             {"loss_adjusted", detail::view_json(bid.loss_adjusted)},
-                             {"no_loss", detail::view_json(bid.no_loss)},
+                             {"loss_adjusted", detail::pool_view_json(bid.loss_adjusted)},
+                             {"no_loss", detail::pool_view_json(bid.no_loss)},
                              {"credit_cost_bp", number_or_null(bid.credit_cost_bp)}};
     pool["at_common_price"] = at_price_json(p.at_common_price);
     Json neutral = nullptr;

@@ -16,6 +16,7 @@
 #include <fmt/format.h>
 
 #include "curves/curves.h"
+#include "pricing/pricing.h"
 #include "report/report.h"
 
 namespace poolbid::detail {
@@ -89,6 +90,15 @@ std::string fixed_or_dash(double x, int decimals) {
   if (!std::isfinite(x)) return "-";
   const std::string digits = fmt::format("{:.{}f}", std::fabs(x), decimals);
   return (x < 0 && !all_zero(digits) ? "-" : "") + digits;
+}
+
+std::string short_number(double x, bool sign) {
+  if (!std::isfinite(x)) return "-";
+  std::string text = sign ? fmt::format("{:+.4f}", x) : fmt::format("{:.4f}", x);
+  text.erase(text.find_last_not_of('0') + 1);
+  if (text.back() == '.') text.pop_back();
+  if (text == "-0" || text == "+0") text = sign ? "+0" : "0";
+  return text;
 }
 
 std::string iso_date(const Date& date) {
@@ -271,6 +281,18 @@ Json cutoff_json(const std::optional<Date>& cutoff) {
 Json number_or_null(double x) {
   if (!std::isfinite(x)) return nullptr;
   return x;
+}
+
+Json pool_view_json(const PoolView& v) {
+  return Json{
+      {"cash_flow_yield", number_or_null(v.cfy)},
+      {"bey", number_or_null(v.bey)},
+      {"z_spread", number_or_null(v.z_spread)},
+      {"par_yield_at_wal", number_or_null(v.par_yield_at_wal)},
+      {"spread_at_wal", number_or_null(v.spread_at_wal)},
+      {"wal_years", number_or_null(v.wal_years)},
+      {"modified_duration", number_or_null(v.modified_duration)},
+  };
 }
 
 Json problem_json(const RowProblem& problem) {

@@ -19,6 +19,7 @@
 
 namespace poolbid {
 struct Assumptions;
+struct PoolView;
 }  // namespace poolbid
 
 namespace poolbid::detail {
@@ -30,6 +31,9 @@ std::string with_thousands(double x, int decimals);
 std::string dollars(double x);
 // x to `decimals` places, no separators; "-" when x is NaN or infinite.
 std::string fixed_or_dash(double x, int decimals);
+// x to at most 4 decimals with trailing zeros dropped ("1.5", "-0.25", "+2" with `sign`); "-"
+// when x is NaN or infinite.
+std::string short_number(double x, bool sign = false);
 // "2026-12-01".
 std::string iso_date(const Date& date);
 // 1234567 -> "1,234,567".
@@ -88,6 +92,9 @@ using Json = nlohmann::ordered_json;
 Json cutoff_json(const std::optional<Date>& cutoff);
 // A number, or null when NaN or infinite.
 Json number_or_null(double x);
+// {"cash_flow_yield","bey","z_spread","par_yield_at_wal","spread_at_wal","wal_years",
+// "modified_duration"} of one view of a bid (loss-adjusted or no-loss).
+Json pool_view_json(const PoolView& view);
 // {"row","loan_id","field","column","value","reason","severity": "reject" | "warning"};
 // field is the canonical name, or null for a problem with the whole row.
 Json problem_json(const RowProblem& problem);

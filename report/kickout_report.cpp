@@ -21,6 +21,8 @@
 namespace poolbid {
 namespace {
 
+using detail::pool_view_json;
+
 using detail::Align;
 using detail::CsvBuffer;
 using detail::Json;
@@ -319,17 +321,6 @@ std::string screen_key(BoxScreen s) {
   }
 }
 
-Json view_json(const PoolView& v) {
-  return Json{
-      {"cash_flow_yield", number_or_null(v.cfy)},
-      {"bey", number_or_null(v.bey)},
-      {"z_spread", number_or_null(v.z_spread)},
-      {"par_yield_at_wal", number_or_null(v.par_yield_at_wal)},
-      {"spread_at_wal", number_or_null(v.spread_at_wal)},
-      {"wal_years", number_or_null(v.wal_years)},
-      {"modified_duration", number_or_null(v.modified_duration)},
-  };
-}
 
 Json without_json(const KickoutResult& r) {
   if (!r.without)
@@ -349,8 +340,8 @@ Json without_json(const KickoutResult& r) {
                    {"accrued", number_or_null(k.accrued)},
                    {"clean_value", number_or_null(k.clean_value)},
                    {"dirty_value", number_or_null(k.dirty_value)}}},
-      {"loss_adjusted", view_json(k.loss_adjusted)},
-      {"no_loss", view_json(k.no_loss)},
+      {"loss_adjusted", pool_view_json(k.loss_adjusted)},
+      {"no_loss", pool_view_json(k.no_loss)},
       {"credit", Json{{"credit_cost_bp", number_or_null(k.credit_cost_bp)},
                       {"expected_loss", number_or_null(k.expected_loss)},
                       {"expected_loss_pct", number_or_null(k.expected_loss_pct)}}},

@@ -25,6 +25,9 @@
 namespace poolbid {
 namespace {
 
+using detail::pool_view_json;
+using detail::short_number;
+
 using detail::Align;
 using detail::Json;
 
@@ -59,15 +62,6 @@ std::string basis_points(double spread) {
   return detail::fixed_or_dash(1e4 * spread, kBpDecimals);
 }
 
-// A number as typed, without trailing zeros: 250 -> "250", 12.5 -> "12.5", up to 4 places.
-std::string short_number(double x, bool sign = false) {
-  if (!std::isfinite(x)) return "-";
-  std::string text = sign ? fmt::format("{:+.4f}", x) : fmt::format("{:.4f}", x);
-  text.erase(text.find_last_not_of('0') + 1);
-  if (text.back() == '.') text.pop_back();
-  if (text == "-0" || text == "+0") text = sign ? "+0" : "0";
-  return text;
-}
 
 std::string_view kind_name(CurveQuote::Kind kind) {
   switch (kind) {
@@ -304,17 +298,6 @@ Json curve_json(const YieldCurve& curve) {
   };
 }
 
-Json view_json(const PoolView& v) {
-  return Json{
-      {"cash_flow_yield", number_or_null(v.cfy)},
-      {"bey", number_or_null(v.bey)},
-      {"z_spread", number_or_null(v.z_spread)},
-      {"par_yield_at_wal", number_or_null(v.par_yield_at_wal)},
-      {"spread_at_wal", number_or_null(v.spread_at_wal)},
-      {"wal_years", number_or_null(v.wal_years)},
-      {"modified_duration", number_or_null(v.modified_duration)},
-  };
-}
 
 // ---- Loans CSV ----------------------------------------------------------------------------------
 
@@ -420,8 +403,8 @@ std::string price_json(const TapeRead& tape, const YieldCurve& given_curve,
                    {"accrued", number_or_null(r.accrued)},
                    {"clean_value", number_or_null(r.clean_value)},
                    {"dirty_value", number_or_null(r.dirty_value)}}},
-      {"loss_adjusted", view_json(r.loss_adjusted)},
-      {"no_loss", view_json(r.no_loss)},
+      {"loss_adjusted", pool_view_json(r.loss_adjusted)},
+      {"no_loss", pool_view_json(r.no_loss)},
       {"credit", Json{{"credit_cost_bp", number_or_null(r.credit_cost_bp)},
                       {"expected_loss", number_or_null(r.expected_loss)},
                       {"expected_loss_pct", number_or_null(r.expected_loss_pct)}}},
