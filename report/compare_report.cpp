@@ -78,7 +78,6 @@ namespace {
 using detail::pool_view_json;
 using detail::short_number;
 
-
 bool shifts(const CurveShift& shift) {
   return shift.parallel_bp != 0 ||
          std::any_of(shift.key_bp.begin(), shift.key_bp.end(), [](double bp) { return bp != 0; });

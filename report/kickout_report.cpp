@@ -321,7 +321,6 @@ std::string screen_key(BoxScreen s) {
   }
 }
 
-
 Json without_json(const KickoutResult& r) {
   if (!r.without)
     return Json{{"status", r.kicked.empty() ? "none_kicked" : "all_kicked"},

@@ -62,7 +62,6 @@ std::string basis_points(double spread) {
   return detail::fixed_or_dash(1e4 * spread, kBpDecimals);
 }
 
-
 std::string_view kind_name(CurveQuote::Kind kind) {
   switch (kind) {
     case CurveQuote::Kind::deposit: return "deposit";
@@ -297,7 +296,6 @@ Json curve_json(const YieldCurve& curve) {
       {"key_rate_shifts", std::move(key_rates)},
   };
 }
-
 
 // ---- Loans CSV ----------------------------------------------------------------------------------
 
